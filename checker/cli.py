@@ -1,0 +1,122 @@
+"""The command line: a thin face over ``checker.review``.
+
+Heavy modules (openpyxl, jsonschema, jinja2) are imported only inside the
+sub-commands, so ``motorcheck --help`` starts fast.
+
+Exit codes: 0 no fail, 1 at least one fail, 2 the input or arguments could
+not be used (one line on stderr), 3 an internal error (a bug; one line too).
+"""
+from __future__ import annotations
+
+import argparse
+import sys
+from pathlib import Path
+
+from checker import __version__
+
+EXIT_OK, EXIT_FAIL, EXIT_UNUSABLE, EXIT_BUG = 0, 1, 2, 3
+
+
+class _Parser(argparse.ArgumentParser):
+    """argparse, but an argument error is one line and exit code 2."""
+
+    def error(self, message: str):  # noqa: D401 - argparse API
+        self.exit(EXIT_UNUSABLE, f"motorcheck: error: {message} (see motorcheck --help)\n")
+
+
+def build_parser() -> argparse.ArgumentParser:
+    parser = _Parser(prog="motorcheck", description=(
+        "Recalculate every row of a submitted motor schedule against the code's motor rules and report "
+        "pass / fail / needs-info findings with the governing rule, the arithmetic and the cell they came from."))
+    parser.add_argument("--version", action="version", version=f"motorcheck {__version__}")
+    sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
+    review = sub.add_parser("review", help="review a schedule (xlsx or CSV) and write HTML and JSON reports",
+                            description="Review a submitted motor schedule and write reports.")
+    review.add_argument("schedule", type=Path, metavar="SCHEDULE", help="the schedule as submitted (.xlsx or .csv)")
+    review.add_argument("--code", default=None, metavar="RULESET",
+                        help="ruleset to review against (default cec-2015; see 'motorcheck codes')")
+    review.add_argument("--json", type=Path, metavar="PATH", help="JSON report path (default reports/<stem>.json)")
+    review.add_argument("--html", type=Path, metavar="PATH", help="HTML report path (default reports/<stem>.html)")
+    review.add_argument("--sheet", metavar="NAME", help="read only this worksheet (default: find the schedule)")
+    review.add_argument("--strict", action="store_true",
+                        help="make unstated duty, motor type or starting method needs-info instead of assuming")
+    review.add_argument("--quiet", action="store_true", help="print only the counts line and report paths")
+    sub.add_parser("codes", help="list the rulesets with edition and how many values are verified",
+                   description="List the available rulesets.")
+    return parser
+
+
+def _cmd_review(args) -> int:
+    from checker.report.build import review_to_dict
+    from checker.report.files import write_atomic
+    from checker.report.html_report import render_html
+    from checker.report.json_report import dumps
+    from checker.report.text_summary import summary_text
+    from checker.review import review_schedule
+    from checker.rules.common import ReviewOptions
+
+    if not args.schedule.exists():
+        raise _Unusable(f"{args.schedule} does not exist")
+    if args.schedule.is_dir():
+        raise _Unusable(f"{args.schedule} is a folder; give the schedule file")
+    review = review_schedule(args.schedule, code=args.code or "cec-2015", sheet=args.sheet,
+                             options=ReviewOptions(strict=args.strict))
+    report = review_to_dict(review, __version__)
+    stem = args.schedule.stem
+    json_path = args.json or Path("reports") / f"{stem}.json"
+    html_path = args.html or Path("reports") / f"{stem}.html"
+    write_atomic(json_path, dumps(report))
+    write_atomic(html_path, render_html(report))
+    text = summary_text(report, max_lines=0 if args.quiet else 40)
+    print(text)
+    print(f"Reports: {html_path}  {json_path}")
+    return EXIT_FAIL if report["summary"]["findings"]["fail"] else EXIT_OK
+
+
+def _cmd_codes(args) -> int:
+    from checker.rules.ruleset import available_rulesets, load_ruleset
+
+    for name in available_rulesets():
+        ruleset = load_ruleset(name)
+        counts = ruleset.verification_counts()
+        total = sum(counts.values())
+        print(f"{ruleset.id:<14} {ruleset.title} (edition {ruleset.edition})")
+        print(f"{'':<14} values: {total}; published source {counts.get('published source', 0)}, "
+              f"common practice {counts.get('common practice', 0)}, from memory {counts.get('from memory', 0)}")
+    return EXIT_OK
+
+
+class _Unusable(Exception):
+    pass
+
+
+def main(argv: list[str] | None = None) -> int:
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    if args.command is None:
+        parser.print_help()
+        return EXIT_UNUSABLE
+    try:
+        if args.command == "review":
+            return _cmd_review(args)
+        return _cmd_codes(args)
+    except KeyboardInterrupt:
+        print("motorcheck: interrupted; no report was replaced", file=sys.stderr)
+        return EXIT_UNUSABLE
+    except Exception as exc:  # every failure ends in one line, never a traceback
+        return _report_error(exc)
+
+
+def _report_error(exc: Exception) -> int:
+    from checker.ingest.readers import InputError
+    from checker.rules.ruleset import RulesetError
+
+    if isinstance(exc, (InputError, RulesetError, _Unusable)):
+        print(f"motorcheck: error: {exc}", file=sys.stderr)
+        return EXIT_UNUSABLE
+    if isinstance(exc, OSError):
+        print(f"motorcheck: error: {exc.strerror or exc} ({exc.filename or ''})", file=sys.stderr)
+        return EXIT_UNUSABLE
+    print(f"motorcheck: internal error ({type(exc).__name__}: {str(exc)[:200]}); please report it with the input file",
+          file=sys.stderr)
+    return EXIT_BUG

@@ -1,0 +1,269 @@
+"""Turn the data rows of a located table into motor records (or skipped rows).
+
+Each row is classified first (blank, section heading, spare/space, total,
+note, repeated header, motor). Motor rows have every mapped cell read by its
+value parser; the record is then validated against
+``schemas/motor.schema.json``. Unreadable cells and schema violations become
+needs-info findings naming the field and cell, never exceptions, and the
+offending value is left out of the record so that the checks which need it
+say so.
+"""
+from __future__ import annotations
+
+import json
+import re
+from dataclasses import dataclass, field
+from functools import lru_cache
+from pathlib import Path
+from typing import Any, Callable
+
+from jsonschema import Draft202012Validator
+
+from checker.ingest import values
+from checker.ingest.layout import LocatedTable
+from checker.model import Finding, Motor, Parsed, SkippedRow, SourceRef, Status, column_letter
+
+SCHEMA_PATH = Path(__file__).resolve().parents[2] / "schemas" / "motor.schema.json"
+
+INPUT_CHECK = "cell-value"
+SCHEMA_CHECK = "record-schema"
+INPUT_RULE = "input"
+
+_SPARE_RE = re.compile(r"^\W*(spare|space|future|provision|not\s+used|deleted|vacant)\b", re.I)
+_TOTAL_RE = re.compile(r"^\W*(grand\s+)?(sub-?)?totals?\b|\btotal\s+(connected|hp|fla|load|kw|amps?)\b", re.I)
+_NOTE_RE = re.compile(r"^\s*(general\s+)?notes?\b|^\s*\(?\d{1,2}[.)]\s+[A-Za-z]|^\s*\*+\s*[A-Za-z]", re.I)
+_MOTOR_TYPE_WORDS = (
+    (re.compile(r"wound|\bw\.?r\.?\b|slip[- ]?ring", re.I), "wound-rotor"),
+    (re.compile(r"synch", re.I), "synchronous"),
+    (re.compile(r"\bd\.?c\.?\b|direct[- ]current", re.I), "dc"),
+    (re.compile(r"squirrel|induction|\bsc\b|\bsqc\b|\bnema\s+design\b|design\s+[abcd]\b", re.I), "squirrel-cage"),
+)
+
+# Layout fields whose presence makes a row a motor rather than a heading.
+_MOTOR_DATA_FIELDS = ("hp", "kw", "fla", "voltage", "voltage_phase", "conductor", "ocpd")
+
+
+def parse_motor_type(text: str) -> Parsed:
+    if not text.strip():
+        return Parsed(placeholder=True)
+    for pattern, kind in _MOTOR_TYPE_WORDS:
+        if pattern.search(text):
+            return Parsed(kind)
+    return Parsed(problem=f"motor type '{text[:60]}' is not one this checker knows")
+
+
+def parse_frequency(text: str) -> Parsed:
+    parsed = values.parse_current_a(re.sub(r"(?i)\s*hz\b", "", text))
+    if parsed.value is None:
+        return parsed
+    return Parsed({"frequency_hz": parsed.value}, notes=parsed.notes)
+
+
+def _nested(key: str, parser: Callable[[str], Parsed]) -> Callable[[str], Parsed]:
+    def wrapped(text: str) -> Parsed:
+        parsed = parser(text)
+        return parsed if parsed.value is None else Parsed({key: parsed.value}, parsed.problem, notes=parsed.notes)
+    return wrapped
+
+
+@dataclass(frozen=True, slots=True)
+class FieldReader:
+    """How one layout field becomes part of the record.
+
+    ``target`` is the record field the value goes to; ``merge`` readers
+    return a dict merged into the record (voltage/phase/frequency cells).
+    """
+
+    parser: Callable[[str], Parsed]
+    target: str | None = None
+    merge: bool = False
+
+
+FIELD_READERS: dict[str, FieldReader] = {
+    "tag": FieldReader(values.parse_text, "tag"),
+    "description": FieldReader(values.parse_text, "description"),
+    "hp": FieldReader(values.parse_hp, "hp"),
+    "kw": FieldReader(values.parse_kw, "kw"),
+    "voltage_phase": FieldReader(values.parse_voltage_phase, merge=True),
+    "voltage": FieldReader(values.parse_voltage, merge=True),
+    "phase": FieldReader(values.parse_phase, merge=True),
+    "frequency": FieldReader(parse_frequency, merge=True),
+    "fla": FieldReader(values.parse_current_a, "fla_a"),
+    "duty": FieldReader(values.parse_duty, "duty"),
+    "starting": FieldReader(values.parse_starting, "starting"),
+    "motor_type": FieldReader(parse_motor_type, "motor_type"),
+    "service_factor": FieldReader(values.parse_service_factor, "service_factor"),
+    "conductor": FieldReader(values.parse_conductor, "conductor"),
+    "ocpd": FieldReader(values.parse_device, "ocpd"),
+    "fed_from": FieldReader(values.parse_text, "fed_from"),
+    "overload": FieldReader(values.parse_text, "overload"),
+    "disconnect": FieldReader(values.parse_text, "disconnect"),
+    "remarks": FieldReader(values.parse_text, "remarks"),
+}
+
+
+@lru_cache(maxsize=1)
+def motor_validator() -> Draft202012Validator:
+    schema = json.loads(SCHEMA_PATH.read_text(encoding="utf-8"))
+    Draft202012Validator.check_schema(schema)
+    return Draft202012Validator(schema)
+
+
+@dataclass
+class TableResult:
+    motors: list[Motor] = field(default_factory=list)
+    skipped: list[SkippedRow] = field(default_factory=list)
+    hidden_motor_rows: list[int] = field(default_factory=list)
+
+
+def _short(text: str, limit: int = 60) -> str:
+    text = " ".join(text.split())
+    return text if len(text) <= limit else text[: limit - 1] + "…"
+
+
+def classify_row(cells: list[str], mapped: dict[str, str], header_texts: dict[str, str]) -> str | None:
+    """Why a row is not a motor, or None when it is one."""
+    filled = [c for c in cells if c]
+    if not filled:
+        return "blank row"
+    first = filled[0]
+    label = mapped.get("tag") or mapped.get("description") or first
+    if _SPARE_RE.match(mapped.get("tag", "")) or _SPARE_RE.match(mapped.get("description", "")) or (
+            len(filled) <= 2 and _SPARE_RE.match(first)):
+        return f"spare or space, not a motor: '{_short(label)}'"
+    repeats = [f for f, text in mapped.items() if text and header_texts.get(f, "").lower().endswith(text.lower())]
+    if len(repeats) >= 3 and len(repeats) * 2 >= len([t for t in mapped.values() if t]):
+        return "repeated header row"
+    if _TOTAL_RE.search(first) or _TOTAL_RE.search(mapped.get("tag", "")):
+        return f"total row: '{_short(' '.join(filled))}'"
+    has_data = any(mapped.get(f) for f in _MOTOR_DATA_FIELDS)
+    if _NOTE_RE.match(first) and (not has_data or len(filled) == 1):
+        return f"note: '{_short(' '.join(filled))}'"
+    if not has_data:
+        if len(filled) <= 2:
+            return f"section heading: '{_short(' '.join(filled))}'"
+        return "no motor data in the row (no hp, kW, FLA, voltage, conductor or device)"
+    return None
+
+
+def _input_finding(message: str, target: str | None) -> Finding:
+    return Finding(INPUT_CHECK, INPUT_RULE, Status.NEEDS_INFO, message, fields=(target,) if target else ())
+
+
+def read_motor(table: LocatedTable, row_index: int, section: tuple[str, SourceRef] | None) -> Motor:
+    """Build and validate one motor record from a data row."""
+    grid = table.grid
+    row_number = grid.row_numbers[row_index]
+    cells = grid.rows[row_index]
+    row_source = SourceRef(grid.file, row_number, sheet=grid.sheet)
+    record: dict[str, Any] = {}
+    sources: dict[str, SourceRef] = {}
+    raw: dict[str, str] = {}
+    findings: list[Finding] = []
+    texts = {col.field: cells[col.index] for col in table.columns}
+    # A separate device-type column ("FUSE" / "CB") completes the device cell.
+    if texts.get("ocpd") and texts.get("ocpd_type"):
+        texts["ocpd"] = f"{texts['ocpd']} {texts['ocpd_type']}"
+    for col in table.columns:
+        text = texts[col.field]
+        if text:
+            raw[col.header or col.field] = text
+        source = row_source.at_column(col.letter)
+        if col.field in ("bond", "raceway"):
+            continue
+        reader = FIELD_READERS.get(col.field)
+        if reader is None or not text:
+            continue
+        parsed = reader.parser(text)
+        if parsed.problem:
+            findings.append(_input_finding(
+                f"Cell {source.label()} ({col.header}) '{_short(text)}' could not be read: {parsed.problem}",
+                reader.target or col.field))
+        if parsed.value is None:
+            continue
+        if reader.merge:
+            for key, value in parsed.value.items():
+                record.setdefault(key, value)
+                sources.setdefault(key, source)
+        else:
+            record[reader.target] = parsed.value
+            sources[reader.target] = source
+    _attach_conductor_extras(table, cells, row_source, record, sources, findings)
+    if "fed_from" not in record and section is not None:
+        record["fed_from"], sources["fed_from"] = section
+    tag = record.get("tag")
+    if not tag:
+        tag = f"(row {row_number})"
+        findings.append(_input_finding(f"Row {row_number} has motor data but no tag; it is reviewed as '{tag}'.", "tag"))
+        record["tag"] = tag
+    findings.extend(_schema_findings(record, sources))
+    return Motor(tag=str(record["tag"]), record=record, source=row_source, sources=sources, raw=raw,
+                 input_findings=tuple(findings))
+
+
+def _attach_conductor_extras(table, cells, row_source, record, sources, findings) -> None:
+    """Fold separate bond/ground and raceway columns into the conductor record."""
+    conductor = record.get("conductor")
+    for col in table.columns:
+        text = cells[col.index]
+        if not text or col.field not in ("bond", "raceway") or conductor is None:
+            continue
+        source = row_source.at_column(col.letter)
+        if col.field == "raceway":
+            conductor.setdefault("raceway", " ".join(text.split()))
+            continue
+        parsed = values.parse_conductor(text)
+        if parsed.value is None:
+            if not parsed.placeholder:
+                findings.append(_input_finding(
+                    f"Cell {source.label()} ({col.header}) '{_short(text)}' could not be read as a bond conductor: "
+                    f"{parsed.problem}", "conductor"))
+            continue
+        conductor.setdefault("bond_size", parsed.value["size"])
+        if parsed.value.get("material_stated"):
+            conductor.setdefault("bond_material", parsed.value["material"])
+
+
+def _schema_findings(record: dict, sources: dict[str, SourceRef]) -> list[Finding]:
+    """Validate against the motor schema; drop each offending field and say why."""
+    findings = []
+    bad_fields: set[str] = set()
+    for error in sorted(motor_validator().iter_errors(record), key=lambda e: list(e.absolute_path)):
+        path = list(error.absolute_path)
+        field_name = str(path[0]) if path else "record"
+        if field_name in bad_fields:
+            continue
+        bad_fields.add(field_name)
+        where = f"cell {sources[field_name].label()}" if field_name in sources else "the row"
+        findings.append(Finding(SCHEMA_CHECK, INPUT_RULE, Status.NEEDS_INFO,
+                                f"Value for {field_name} in {where} is not usable: {error.message}.",
+                                fields=(field_name,)))
+    for name in bad_fields:
+        if name != "tag":
+            record.pop(name, None)
+    return findings
+
+
+def normalize_table(table: LocatedTable) -> TableResult:
+    """Every data row of the table becomes a motor or a skipped row."""
+    result = TableResult()
+    grid = table.grid
+    header_texts = {col.field: col.header.split(" / ")[-1] for col in table.columns}
+    section: tuple[str, SourceRef] | None = None
+    for index in range(table.data_first, table.data_last + 1):
+        cells = grid.rows[index]
+        row_number = grid.row_numbers[index]
+        mapped = {col.field: cells[col.index] for col in table.columns}
+        reason = classify_row(cells, mapped, header_texts)
+        source = SourceRef(grid.file, row_number, sheet=grid.sheet)
+        if reason is None:
+            result.motors.append(read_motor(table, index, section))
+            if row_number in grid.hidden_rows:
+                result.hidden_motor_rows.append(row_number)
+            continue
+        if reason.startswith("section heading"):
+            first_col = next(i for i, c in enumerate(cells) if c)
+            section = (" ".join(cells[first_col].split()), source.at_column(column_letter(first_col)))
+        result.skipped.append(SkippedRow(source, reason, _short(" | ".join(c for c in cells if c), 200)))
+    return result
+

@@ -1,0 +1,173 @@
+"""The small shared vocabulary of motorcheck.
+
+Every layer (ingest, rules, report, cli) speaks in these types and nothing
+else imports upward. All types are plain frozen dataclasses so that a review
+is deterministic and easy to serialise.
+
+Units are carried in names: ``rating_a`` is amperes, ``voltage_v`` volts.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from enum import Enum
+from typing import Any
+
+
+class Status(str, Enum):
+    """Outcome of one check on one motor."""
+
+    PASS = "pass"
+    FAIL = "fail"
+    NEEDS_INFO = "needs-info"
+
+
+def column_letter(index0: int) -> str:
+    """Spreadsheet column letters for a 0-based column index (0 -> 'A', 26 -> 'AA')."""
+    letters = ""
+    n = index0 + 1
+    while n:
+        n, rem = divmod(n - 1, 26)
+        letters = chr(65 + rem) + letters
+    return letters
+
+
+@dataclass(frozen=True, slots=True)
+class SourceRef:
+    """Where a row or a value came from, as a person would find it.
+
+    ``row`` is 1-based and is the row number a spreadsheet program shows (for
+    CSV: the record's line number). ``column`` is the spreadsheet column letter
+    (``"C"``) or, for a PDF table, the 1-based column number as text.
+    """
+
+    file: str
+    row: int
+    sheet: str | None = None
+    page: int | None = None
+    table: int | None = None
+    column: str | None = None
+
+    def at_column(self, column: str | None) -> "SourceRef":
+        return SourceRef(self.file, self.row, self.sheet, self.page, self.table, column)
+
+    def label(self) -> str:
+        """Short human locator: ``Motors!C12``, ``row 12`` or ``p. 3, table 1, row 5``."""
+        if self.page is not None:
+            where = f"p. {self.page}"
+            if self.table is not None:
+                where += f", table {self.table}"
+            where += f", row {self.row}"
+            if self.column:
+                where += f", col {self.column}"
+            return where
+        cell = f"{self.column or ''}{self.row}" if self.column else f"row {self.row}"
+        return f"{self.sheet}!{cell}" if self.sheet else cell
+
+    def to_dict(self) -> dict[str, Any]:
+        out: dict[str, Any] = {"file": self.file}
+        if self.sheet is not None:
+            out["sheet"] = self.sheet
+        if self.page is not None:
+            out["page"] = self.page
+        if self.table is not None:
+            out["table"] = self.table
+        out["row"] = self.row
+        if self.column is not None:
+            out["column"] = self.column
+        out["label"] = self.label()
+        return out
+
+
+@dataclass(frozen=True, slots=True)
+class Cell:
+    """One raw cell: its text exactly as read (stripped) and where it was."""
+
+    text: str
+    source: SourceRef
+
+
+@dataclass(frozen=True, slots=True)
+class Parsed:
+    """Result of reading one cell with a value parser.
+
+    ``value`` is the normalised value (JSON-able: number, str, dict) or None.
+    ``problem`` is a one-sentence reason when the cell could not be read fully
+    (the value may still be partly filled). ``placeholder`` is True for cells
+    that deliberately say "nothing yet" (TBD, N/A, ---, blank).
+    """
+
+    value: Any = None
+    problem: str | None = None
+    placeholder: bool = False
+    notes: tuple[str, ...] = ()
+
+
+@dataclass(frozen=True, slots=True)
+class Finding:
+    """One check's verdict on one motor.
+
+    ``limit`` is the computed code limit (minimum ampacity for conductor checks,
+    maximum rating for overcurrent checks), ``provided`` the value on the
+    schedule, both in ``unit``. ``trail`` is the arithmetic, one step per item.
+    ``fields`` names the motor-record fields the check read, so a report can
+    point at the cells.
+    """
+
+    check: str
+    rule: str
+    status: Status
+    message: str
+    limit: float | None = None
+    provided: float | None = None
+    unit: str | None = None
+    trail: tuple[str, ...] = ()
+    assumptions: tuple[str, ...] = ()
+    fields: tuple[str, ...] = ()
+    citation: str | None = None
+
+
+@dataclass(frozen=True, slots=True)
+class Motor:
+    """A normalised motor row.
+
+    ``record`` follows ``schemas/motor.schema.json`` (the single definition of
+    fields, types and units). ``sources`` maps a record field to the cell it
+    came from. ``input_findings`` are needs-info findings raised while reading
+    and validating the row (unreadable cells, schema violations).
+    """
+
+    tag: str
+    record: dict[str, Any]
+    source: SourceRef
+    sources: dict[str, SourceRef] = field(default_factory=dict)
+    raw: dict[str, str] = field(default_factory=dict)
+    input_findings: tuple[Finding, ...] = ()
+
+
+@dataclass(frozen=True, slots=True)
+class SkippedRow:
+    """An input row that is not a motor, with the reason it was passed over."""
+
+    source: SourceRef
+    reason: str
+    text: str = ""
+
+
+@dataclass(frozen=True, slots=True)
+class MotorReview:
+    motor: Motor
+    findings: tuple[Finding, ...]
+
+
+@dataclass(frozen=True, slots=True)
+class Review:
+    """Everything a renderer needs. Renderers see nothing else."""
+
+    code: str
+    ruleset: dict[str, Any]
+    input: dict[str, Any]
+    motors: tuple[MotorReview, ...]
+    skipped: tuple[SkippedRow, ...]
+    tables: tuple[dict[str, Any], ...] = ()
+    notes: tuple[str, ...] = ()
+    checks_not_run: tuple[dict[str, Any], ...] = ()

@@ -1,0 +1,249 @@
+"""Turn a :class:`checker.model.Review` into the one report dict every emitter reads.
+
+The dict is deterministic: no timestamps, no absolute paths, motors in input
+order, findings in the order the review gives them, our own keys in a fixed
+order. The JSON emitter writes it as is; the HTML and text emitters only read it.
+"""
+from __future__ import annotations
+
+import math
+from collections.abc import Iterable, Mapping
+from datetime import date, datetime, time
+from enum import Enum
+from pathlib import PurePath, PurePosixPath, PureWindowsPath
+from typing import Any
+
+from checker import model
+
+TOOL_NAME = "motorcheck"
+
+# Worst first: a motor takes the first status that any of its findings has.
+STATUS_ORDER: tuple[str, ...] = (
+    model.Status.FAIL.value,
+    model.Status.NEEDS_INFO.value,
+    model.Status.PASS.value,
+)
+
+# Limits and provided values are printed to 3 decimals; more would only show float noise.
+VALUE_DECIMALS = 3
+
+
+def worst_status(statuses: Iterable[str]) -> str:
+    """Worst of ``statuses`` (fail > needs-info > pass); nothing to judge is needs-info."""
+    seen = set(statuses)
+    for status in STATUS_ORDER:
+        if status in seen:
+            return status
+    return model.Status.NEEDS_INFO.value
+
+
+def count_statuses(statuses: Iterable[str]) -> dict[str, int]:
+    """Counts keyed ``pass``, ``fail``, ``needs-info`` (always all three, in that order)."""
+    counts = {"pass": 0, "fail": 0, "needs-info": 0}
+    for status in statuses:
+        if status in counts:
+            counts[status] += 1
+    return counts
+
+
+def plain(value: Any) -> Any:
+    """A JSON-safe deep copy of ``value``.
+
+    Mappings keep their key order (keys become strings), tuples and lists become
+    lists, sets become lists sorted by text (sets have no stable order), dates
+    become ISO text (TOML can hold them), non-finite floats become None (JSON
+    has no NaN) and anything else unknown becomes its ``str``.
+    """
+    if value is None or isinstance(value, (bool, int, str)):
+        return value
+    if isinstance(value, float):
+        return value if math.isfinite(value) else None
+    if isinstance(value, Enum):
+        return plain(value.value)
+    if isinstance(value, Mapping):
+        return {str(key): plain(item) for key, item in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [plain(item) for item in value]
+    if isinstance(value, (set, frozenset)):
+        return sorted((plain(item) for item in value), key=str)
+    if isinstance(value, (datetime, date, time)):
+        return value.isoformat()
+    if isinstance(value, PurePath):
+        return safe_file_name(str(value))
+    return str(value)
+
+
+def safe_file_name(path_text: str) -> str:
+    """``path_text`` unchanged if relative, else only its final name.
+
+    An absolute path would make two runs on different machines differ and
+    leak the reviewer's directory layout into a document that is handed out.
+    """
+    for flavour in (PurePosixPath, PureWindowsPath):
+        pure = flavour(path_text)
+        if pure.is_absolute() or (flavour is PureWindowsPath and pure.drive):
+            return pure.name
+    return path_text
+
+
+def round_value(value: float | None) -> float | int | None:
+    """``value`` rounded to :data:`VALUE_DECIMALS`; None for missing or non-finite."""
+    if value is None or isinstance(value, bool):
+        return None
+    try:
+        number = float(value)
+    except (TypeError, ValueError):
+        return None
+    if not math.isfinite(number):
+        return None
+    return round(number, VALUE_DECIMALS)
+
+
+def source_dict(source: model.SourceRef) -> dict[str, Any]:
+    """``SourceRef.to_dict()`` with an absolute file path cut to its name."""
+    out = source.to_dict()
+    out["file"] = safe_file_name(out["file"])
+    return out
+
+
+def cells_for(finding: model.Finding, sources: Mapping[str, model.SourceRef]) -> list[dict[str, Any]]:
+    """Cell locations of the fields a finding read; fields with no known cell are left out."""
+    cells = []
+    for field_name in finding.fields:
+        source = sources.get(field_name)
+        if source is None:
+            continue
+        cells.append({"field": field_name, "label": source.label(), "column": source.column})
+    return cells
+
+
+def finding_dict(finding: model.Finding, sources: Mapping[str, model.SourceRef]) -> dict[str, Any]:
+    """One finding in report form (fixed key order)."""
+    return {
+        "check": finding.check,
+        "rule": finding.rule,
+        "status": model.Status(finding.status).value,
+        "message": finding.message,
+        "limit": round_value(finding.limit),
+        "provided": round_value(finding.provided),
+        "unit": finding.unit,
+        "trail": [str(step) for step in finding.trail],
+        "assumptions": [str(item) for item in finding.assumptions],
+        "citation": finding.citation,
+        "cells": cells_for(finding, sources),
+    }
+
+
+def motor_dict(motor_review: model.MotorReview) -> dict[str, Any]:
+    """One motor with its reading findings first, then its check findings."""
+    motor = motor_review.motor
+    findings = [
+        finding_dict(finding, motor.sources)
+        for finding in (*motor.input_findings, *motor_review.findings)
+    ]
+    return {
+        "tag": motor.tag,
+        "status": worst_status(item["status"] for item in findings),
+        "source": source_dict(motor.source),
+        "record": plain(motor.record),
+        "raw": plain(motor.raw),
+        "findings": findings,
+    }
+
+
+def skipped_dict(row: model.SkippedRow) -> dict[str, Any]:
+    return {"source": source_dict(row.source), "reason": row.reason, "text": row.text}
+
+
+def check_not_run_dict(entry: Mapping[str, Any]) -> dict[str, Any]:
+    """Normalise one ``checks_not_run`` entry to ``{check, reason, motors}``."""
+    try:
+        motor_count = int(entry.get("motors", 0) or 0)
+    except (TypeError, ValueError):
+        motor_count = 0
+    return {
+        "check": str(entry.get("check", "")),
+        "reason": str(entry.get("reason", "")),
+        "motors": max(motor_count, 0),
+    }
+
+
+def overall_result(motor_statuses: list[str], checks_not_run: list[dict[str, Any]]) -> str:
+    """Result of the whole review.
+
+    Worst motor status; a review with no motors, or where a check could not
+    run on some motor, cannot be called a pass, so it is at best needs-info.
+    """
+    result = worst_status(motor_statuses)
+    if result == model.Status.PASS.value and any(entry["motors"] > 0 for entry in checks_not_run):
+        return model.Status.NEEDS_INFO.value
+    return result
+
+
+def summary_dict(
+    motors: list[dict[str, Any]], skipped_count: int, checks_not_run: list[dict[str, Any]]
+) -> dict[str, Any]:
+    motor_statuses = [motor["status"] for motor in motors]
+    finding_statuses = [finding["status"] for motor in motors for finding in motor["findings"]]
+    return {
+        "rows_read": len(motors) + skipped_count,
+        "motors": len(motors),
+        "skipped": skipped_count,
+        "findings": count_statuses(finding_statuses),
+        "motors_by_status": count_statuses(motor_statuses),
+        "result": overall_result(motor_statuses, checks_not_run),
+        "checks_not_run": checks_not_run,
+    }
+
+
+def as_list(value: Any) -> list[Any]:
+    """``value`` if it is a list, else an empty list (a ruleset may leave a key out)."""
+    return value if isinstance(value, list) else []
+
+
+def text_list(value: Any) -> list[str]:
+    """A list of strings from a list, a single string, or nothing."""
+    if isinstance(value, str):
+        return [value]
+    return [str(item) for item in as_list(value)]
+
+
+def input_dict(given: Mapping[str, Any]) -> dict[str, Any]:
+    out = plain(given)
+    if isinstance(out.get("file"), str):
+        out["file"] = safe_file_name(out["file"])
+    return out
+
+
+def review_to_dict(review: model.Review, tool_version: str) -> dict[str, Any]:
+    """The report dict for ``review`` (shape: ``schemas/review.schema.json``).
+
+    Parameters
+    ----------
+    review : checker.model.Review
+        The finished review.
+    tool_version : str
+        motorcheck's version, written into ``tool.version``.
+
+    Returns
+    -------
+    dict
+        Plain JSON-safe data; see the schema for every key.
+    """
+    motors = [motor_dict(motor_review) for motor_review in review.motors]
+    skipped = [skipped_dict(row) for row in review.skipped]
+    checks_not_run = [check_not_run_dict(entry) for entry in review.checks_not_run]
+    ruleset = plain(review.ruleset)
+    return {
+        "tool": {"name": TOOL_NAME, "version": str(tool_version)},
+        "code": review.code,
+        "ruleset": ruleset,
+        "input": input_dict(review.input),
+        "summary": summary_dict(motors, len(skipped), checks_not_run),
+        "cautions": text_list(ruleset.get("cautions")),
+        "notes": [str(item) for item in review.notes],
+        "tables": [plain(table) for table in review.tables],
+        "motors": motors,
+        "skipped": skipped,
+        "checks": [entry for entry in as_list(ruleset.get("checks")) if isinstance(entry, dict)],
+    }

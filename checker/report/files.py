@@ -1,0 +1,58 @@
+"""Writing report files so that a reader never sees half a file."""
+from __future__ import annotations
+
+import os
+import stat
+import tempfile
+from pathlib import Path
+
+# Mode for a new report file: readable by others like any document (the temp file starts at 0600).
+NEW_FILE_MODE = 0o644
+
+
+def write_atomic(path: Path, text: str) -> None:
+    """Write ``text`` (UTF-8, newlines as given) to ``path`` all at once.
+
+    The text goes to a temporary file in the same directory, is flushed to
+    disk, then renamed over ``path`` (``os.replace`` is atomic on one file
+    system). Parent directories are created. An existing file keeps its mode.
+    On any error the temporary file is removed and the ``OSError`` is raised
+    for the caller to turn into a one-line message.
+    """
+    path = Path(path)
+    path.parent.mkdir(parents=True, exist_ok=True)
+    try:
+        mode = stat.S_IMODE(path.stat().st_mode)
+    except FileNotFoundError:
+        mode = NEW_FILE_MODE
+    handle, temp_name = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
+    try:
+        with os.fdopen(handle, "w", encoding="utf-8", newline="") as stream:
+            stream.write(text)
+            stream.flush()
+            os.fsync(stream.fileno())
+        os.chmod(temp_name, mode)
+        os.replace(temp_name, path)
+    except BaseException:
+        try:
+            os.unlink(temp_name)
+        except FileNotFoundError:
+            pass
+        raise
+    _sync_directory(path.parent)
+
+
+def _sync_directory(directory: Path) -> None:
+    """Flush the rename itself to disk where the platform allows it (not on Windows)."""
+    if not hasattr(os, "O_DIRECTORY"):
+        return
+    try:
+        fd = os.open(directory, os.O_RDONLY | os.O_DIRECTORY)
+    except OSError:
+        return
+    try:
+        os.fsync(fd)
+    except OSError:
+        pass
+    finally:
+        os.close(fd)

@@ -1,0 +1,167 @@
+"""Render the report dict as one self-contained HTML page.
+
+Everything shown comes from the report dict; all of it is escaped by Jinja2's
+autoescape. The page carries its own style and script inline, and a
+Content-Security-Policy that allows only those two (by their SHA-256), so
+nothing else in the page can run or fetch anything, even if a submitted cell
+somehow got past escaping.
+"""
+from __future__ import annotations
+
+import base64
+import hashlib
+import json
+from functools import lru_cache
+from pathlib import Path
+from typing import Any
+
+from jinja2 import Environment, FileSystemLoader, StrictUndefined
+
+TEMPLATES_DIR = Path(__file__).resolve().parent / "templates"
+TEMPLATE_NAME = "review.html.j2"
+
+# Worst first, the order counts are shown in.
+STATUS_LABELS = {"fail": "FAIL", "needs-info": "NEEDS INFO", "pass": "PASS"}
+
+# Filter buttons, in the order they are shown: (data-filter value, button text).
+FILTERS = (("all", "All"), ("fail", "Fail"), ("needs-info", "Needs info"), ("pass", "Pass"))
+
+
+def csp_hash(text: str) -> str:
+    """CSP source expression for an inline element whose text is ``text``.
+
+    Browsers hash the element's text as UTF-8 and compare base64 SHA-256
+    digests (CSP Level 3, "hash-source").
+    """
+    digest = hashlib.sha256(str(text).encode("utf-8")).digest()
+    return "sha256-" + base64.b64encode(digest).decode("ascii")
+
+
+def format_number(value: Any) -> str:
+    """A limit or provided value for people: up to 3 decimals, no trailing zeros; dash if missing."""
+    if value is None or isinstance(value, bool):
+        return "\u2014"
+    if isinstance(value, (int, float)):
+        text = f"{float(value):.3f}".rstrip("0").rstrip(".")
+        return "0" if text == "-0" else text
+    return str(value)
+
+
+def anchor(check_id: Any) -> str:
+    """Fragment-safe form of a check id, used for ``#check-<id>`` on both ends of a link."""
+    text = str(check_id)
+    return "".join(ch if (ch.isascii() and (ch.isalnum() or ch in "-_.")) else "-" for ch in text)
+
+
+def status_label(status: Any) -> str:
+    return STATUS_LABELS.get(str(status), str(status).upper())
+
+
+def cell_text(value: Any) -> str:
+    """A pass-through value (tables, verification counts) as short text."""
+    if value is None:
+        return ""
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    if isinstance(value, (list, tuple)):
+        return ", ".join(cell_text(item) for item in value)
+    if isinstance(value, dict):
+        return json.dumps(value, ensure_ascii=False, sort_keys=False)
+    return str(value)
+
+
+@lru_cache(maxsize=1)
+def _environment() -> Environment:
+    env = Environment(
+        loader=FileSystemLoader(str(TEMPLATES_DIR)),
+        autoescape=True,
+        undefined=StrictUndefined,
+        trim_blocks=True,
+        lstrip_blocks=True,
+        keep_trailing_newline=True,
+    )
+    env.filters.update(
+        csp_hash=csp_hash, num=format_number, anchor=anchor, status_label=status_label, cell_text=cell_text
+    )
+    return env
+
+
+def _mapping(value: Any) -> dict[str, Any]:
+    return value if isinstance(value, dict) else {}
+
+
+def _list(value: Any) -> list[Any]:
+    return value if isinstance(value, list) else []
+
+
+def table_grid(tables: list[Any]) -> tuple[list[str], list[list[str]]]:
+    """Column names (first-seen order) and text rows for the 'Tables read' section.
+
+    The table descriptions are passed through from ingest, so their keys are
+    not fixed here; every key any table has becomes a column.
+    """
+    columns: list[str] = []
+    for table in tables:
+        for key in _mapping(table):
+            if key not in columns:
+                columns.append(key)
+    rows = [[cell_text(_mapping(table).get(key)) for key in columns] for table in tables]
+    return columns, rows
+
+
+def verification_pairs(ruleset: dict[str, Any]) -> list[tuple[str, str]]:
+    """``ruleset['verification']`` as (label, count) pairs; one pair if it is a single value."""
+    given = ruleset.get("verification")
+    if isinstance(given, dict):
+        return [(str(key).replace("_", " "), cell_text(value)) for key, value in given.items()]
+    if given is None:
+        return []
+    return [("", cell_text(given))]
+
+
+def _context(report: dict[str, Any]) -> dict[str, Any]:
+    ruleset = _mapping(report.get("ruleset"))
+    given_input = _mapping(report.get("input"))
+    summary = _mapping(report.get("summary"))
+    motors = _list(report.get("motors"))
+    checks = [entry for entry in _list(report.get("checks")) if isinstance(entry, dict)]
+    columns, rows = table_grid(_list(report.get("tables")))
+    by_status = _mapping(summary.get("motors_by_status"))
+    filter_counts = {"all": len(motors), **{key: by_status.get(key, 0) for key in STATUS_LABELS}}
+    return {
+        "report": report,
+        "tool": _mapping(report.get("tool")),
+        "ruleset": ruleset,
+        "input": given_input,
+        "file_name": str(given_input.get("file") or "(unnamed input)"),
+        "code": str(report.get("code", "")),
+        "summary": summary,
+        "cautions": _list(report.get("cautions")),
+        "notes": _list(report.get("notes")),
+        "motors": motors,
+        "skipped": _list(report.get("skipped")),
+        "checks": checks,
+        "appendix_ids": {str(entry.get("id")) for entry in checks},
+        "verification": verification_pairs(ruleset),
+        "table_columns": columns,
+        "table_rows": rows,
+        "filters": [(value, text, filter_counts.get(value, 0)) for value, text in FILTERS],
+        "status_keys": list(STATUS_LABELS),
+    }
+
+
+def render_html(report: dict[str, Any]) -> str:
+    """The report as one self-contained HTML page (no external resources).
+
+    Parameters
+    ----------
+    report : dict
+        Output of :func:`checker.report.build.review_to_dict`.
+
+    Returns
+    -------
+    str
+        The page; its inline ``<style>`` and ``<script>`` are the only ones the
+        page's Content-Security-Policy allows.
+    """
+    return _environment().get_template(TEMPLATE_NAME).render(**_context(report))

@@ -1,0 +1,81 @@
+"""One-screen text summary of a report, for the terminal."""
+from __future__ import annotations
+
+import re
+import unicodedata
+from typing import Any
+
+LINE_WIDTH = 120
+STATUS_WORDS = {"fail": "FAIL", "needs-info": "NEEDS-INFO", "pass": "PASS"}
+# Failures are listed before needs-info so that a capped screen still shows every failure it can.
+LISTED_STATUSES = ("fail", "needs-info")
+
+_SPACES = re.compile(r"\s+")
+
+
+def clean(text: Any) -> str:
+    """``text`` on one line with control characters removed.
+
+    Submitted cells reach the terminal through this summary, so escape
+    sequences and line breaks in them must not reach it raw.
+    """
+    flat = _SPACES.sub(" ", str(text))
+    return "".join(ch for ch in flat if unicodedata.category(ch) not in ("Cc", "Cf")).strip()
+
+
+def clip(line: str, width: int = LINE_WIDTH) -> str:
+    """``line`` cut to ``width`` characters, ending in '...' when cut."""
+    return line if len(line) <= width else line[: width - 3].rstrip() + "..."
+
+
+def finding_lines(report: dict[str, Any]) -> list[str]:
+    """One line per fail or needs-info finding, failures first, each group in report order."""
+    lines = []
+    for status in LISTED_STATUSES:
+        for motor in report.get("motors", []):
+            location = clean((motor.get("source") or {}).get("label", ""))
+            tag = clean(motor.get("tag", ""))
+            for finding in motor.get("findings", []):
+                if finding.get("status") != status:
+                    continue
+                parts = (location, tag, STATUS_WORDS[status], clean(finding.get("rule", "")), clean(finding.get("message", "")))
+                lines.append(clip("  ".join(parts)))
+    return lines
+
+
+def head_lines(report: dict[str, Any]) -> list[str]:
+    """File and code; result and counts; checks that could not run (only when there are any)."""
+    summary = report.get("summary", {})
+    file_name = clean((report.get("input") or {}).get("file", "(unnamed input)"))
+    title = clean((report.get("ruleset") or {}).get("title", ""))
+    first = f"{file_name}  {clean(report.get('code', ''))}" + (f" ({title})" if title else "")
+    by_status = summary.get("motors_by_status", {})
+    result = summary.get("result", "")
+    counts = (
+        f"result: {STATUS_WORDS.get(result, clean(result).upper())} | "
+        f"{summary.get('rows_read', 0)} rows read: {summary.get('motors', 0)} motors, "
+        f"{summary.get('skipped', 0)} not reviewed | motors: {by_status.get('fail', 0)} fail, "
+        f"{by_status.get('needs-info', 0)} needs info, {by_status.get('pass', 0)} pass"
+    )
+    lines = [clip(first), counts]  # counts are never cut
+    not_run = summary.get("checks_not_run") or []
+    if not_run:
+        listed = ", ".join(f"{clean(entry.get('check', ''))} ({entry.get('motors', 0)} motors)" for entry in not_run)
+        lines.append(clip(f"checks not run: {listed}"))
+    return lines
+
+
+def summary_text(report: dict[str, Any], max_lines: int = 40) -> str:
+    """The summary, at most ``max_lines`` lines (the header lines are always kept).
+
+    Layout: ``<file>  <code>``; a counts line; one line per fail/needs-info
+    finding as ``<location>  <tag>  <STATUS>  <rule>  <message>`` (at most
+    120 characters); ``... N more (see report)`` when lines were left out.
+    """
+    head = head_lines(report)
+    body = finding_lines(report)
+    room = max(max_lines - len(head), 0)
+    if len(body) > room:
+        shown = max(room - 1, 0)
+        body = body[:shown] + [f"... {len(body) - shown} more (see report)"]
+    return "\n".join(head + body) + "\n"
