@@ -20,7 +20,7 @@ EXIT_OK, EXIT_FAIL, EXIT_UNUSABLE, EXIT_BUG = 0, 1, 2, 3
 class _Parser(argparse.ArgumentParser):
     """argparse, but an argument error is one line and exit code 2."""
 
-    def error(self, message: str):  # noqa: D401 - argparse API
+    def error(self, message: str):
         self.exit(EXIT_UNUSABLE, f"motorcheck: error: {message} (see motorcheck --help)\n")
 
 
@@ -103,7 +103,7 @@ def main(argv: list[str] | None = None) -> int:
     except KeyboardInterrupt:
         print("motorcheck: interrupted; no report was replaced", file=sys.stderr)
         return EXIT_UNUSABLE
-    except Exception as exc:  # every failure ends in one line, never a traceback
+    except Exception as exc:  # noqa: BLE001 - every failure ends in one line, never a traceback
         return _report_error(exc)
 
 

@@ -47,7 +47,7 @@ class SourceRef:
     table: int | None = None
     column: str | None = None
 
-    def at_column(self, column: str | None) -> "SourceRef":
+    def at_column(self, column: str | None) -> SourceRef:
         return SourceRef(self.file, self.row, self.sheet, self.page, self.table, column)
 
     def label(self) -> str:

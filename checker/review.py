@@ -19,7 +19,7 @@ from checker.rules.common import ReviewOptions
 from checker.rules.registry import CHECKS, runnable
 from checker.rules.ruleset import Ruleset, RulesetError, load_ruleset
 
-__all__ = ["review_schedule", "InputError", "RulesetError"]
+__all__ = ["InputError", "RulesetError", "review_schedule"]
 
 
 def _ruleset_info(ruleset: Ruleset) -> dict:
@@ -104,12 +104,13 @@ def _duplicate_tag_notes(motors: list[MotorReview]) -> list[str]:
 
 
 def review_schedule(path: Path, code: str = "cec-2015", sheet: str | None = None,
-                    options: ReviewOptions = ReviewOptions()) -> Review:
+                    options: ReviewOptions | None = None) -> Review:
     """Review one submitted schedule file against one ruleset.
 
     Raises InputError (the file cannot be used) or RulesetError (the ruleset
     is invalid); both carry a one-line message for the reviewer.
     """
+    options = options or ReviewOptions()
     ruleset = load_ruleset(code)
     _check_registry(ruleset)
     path = Path(path)

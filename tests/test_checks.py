@@ -224,3 +224,7 @@ def test_standard_rating(rating_a, status):
 def test_synchronous_motor_without_nameplate_current_is_needs_info():
     f = one(check_motor_current(motor(hp=60, voltage_v=575, phase=3, motor_type="synchronous"), RS, LENIENT))
     assert f.status is Status.NEEDS_INFO and "synchronous" in f.message
+
+
+def test_standard_rating_check_is_silent_without_a_device():
+    assert check_ocpd_standard_rating(motor(fla_a=10), RS, LENIENT) == []

@@ -19,8 +19,7 @@ import pytest
 
 from checker import model
 from checker.model import Finding, Motor, MotorReview, Review, SkippedRow, SourceRef, Status
-from checker.report import dumps, render_html, review_to_dict, summary_text, validate, write_atomic
-from checker.report import build
+from checker.report import build, dumps, render_html, review_to_dict, summary_text, validate, write_atomic
 
 SCRIPT = "<script>alert(1)</script>"
 ATTR = '"><img src=x onerror=alert(1)>'

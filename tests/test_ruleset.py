@@ -144,7 +144,7 @@ def test_bad_ruleset_is_rejected_with_one_line(tmp_path, cec_text, old, new, wor
 
 
 def test_table_without_rows_is_rejected(tmp_path, cec_text):
-    text, n = re.subn(r"\[tables\.table_27\.rows\].*?(?=\n\[tables)", "", cec_text, flags=re.S)
+    text, n = re.subn(r"\[tables\.table_27\.rows\].*?(?=\n\[tables)", "", cec_text, flags=re.DOTALL)
     assert n == 1
     path = tmp_path / "no-rows.toml"
     path.write_text(text, encoding="utf-8")

@@ -47,6 +47,7 @@ FIELD_PATTERNS: dict[str, tuple[tuple[str, float], ...]] = {
         (r"(?:equipment|equip|motor|load|unit) (?:name|description|desc|service)", 1.0),
         (r"name|function|application|duty description", 0.8),
         (r"kind|area served|serves", 0.7),
+        (r"equipment", 0.65),
     ),
     "quantity": (
         (r"qty|quantity|no of units|number of units|no req d|count", 1.0),
@@ -140,7 +141,7 @@ FIELD_PATTERNS: dict[str, tuple[tuple[str, float], ...]] = {
     ),
     "ocpd_type": (
         (r"fuse cb|cb fuse|fuse or cb|cb or fuse|fuse breaker type", 1.0),
-        (r"(?:ocpd|ocp|breaker|fuse|device|protection|protective device|overcurrent device) type", 1.0),
+        (r"(?:ocpd|ocp|breaker|fuse|device|protection|protective device|overcurrent|overcurrent device) type", 1.0),
         (r"type of (?:ocpd|ocp|protection|device|protective device|overcurrent device)|fuse class|fuse type", 1.0),
     ),
     "overload": (
@@ -155,8 +156,8 @@ FIELD_PATTERNS: dict[str, tuple[tuple[str, float], ...]] = {
     ),
     "fed_from": (
         (r"fed from|feeder from|fed by|supplied from|supply from|source|power source|feeding from", 1.0),
-        (r"(?:panel|pnl|mcc|switchboard|board|distribution)(?: (?:ckt|circuit|bucket|cubicle|unit|no|number|"
-         r"section|cct|bkt|position|designation))*", 0.8),
+        ((r"(?:panel|pnl|mcc|switchboard|board|distribution)(?: (?:ckt|circuit|bucket|cubicle|unit|no|number|"
+          r"section|cct|bkt|position|designation))*"), 0.8),
         (r"ckt|circuit|cct|bucket|cubicle|location in mcc|mcc location", 0.6),
     ),
     "remarks": (
@@ -164,26 +165,31 @@ FIELD_PATTERNS: dict[str, tuple[tuple[str, float], ...]] = {
     ),
 }
 
+
+def _words(text: str) -> frozenset[str]:
+    return frozenset(text.split())
+
+
 # Words that neither help nor hurt a match: qualifiers, units, materials.
 # A header made only of these (``SIZE``) matches nothing on its own.
-FILLER_WORDS: frozenset[str] = frozenset(
-    "motor motors nom nominal rated the of in and or for at per each data value values size sizes no number "
-    "num a amp v in inch inches ft feet m mm mm2 sq awg kcmil mcm c deg degc f cu al copper aluminum aluminium "
-    "thhn thwn rw rwu teck xlpe type"
-    .split())
+FILLER_WORDS: frozenset[str] = _words(
+    "motor motors nom nominal rated the of in and or for at per each data value values size sizes no "
+    "number num a amp v in inch inches ft feet m mm mm2 sq awg kcmil mcm c deg degc f cu al copper "
+    "aluminum aluminium thhn thwn rw rwu teck xlpe"
+)
 
 # Leaf words that are header vocabulary even though they map to no field
 # by themselves (they qualify a group above them: BREAKER / SIZE).
-GENERIC_HEADER_WORDS: frozenset[str] = frozenset(
+GENERIC_HEADER_WORDS: frozenset[str] = _words(
     "size type trip frame rating setting amps a poles pole class model make mfr manufacturer location "
     "from to lra bhp cfm gpm esp weight qty no number remarks sets set material insulation"
-    .split())
+)
 
 # Unit tokens that can form a units row under the leaf header row.
-UNIT_WORDS: frozenset[str] = frozenset(
-    "a amp amps ampere amperes v volt volts kv hp kw w watts hz ph phase % ft feet m mm mm2 in inch inches "
-    "awg kcmil mcm c degc f degf deg rpm s sec min sf pu ohm ohms kva va"
-    .split())
+UNIT_WORDS: frozenset[str] = _words(
+    "a amp amps ampere amperes v volt volts kv hp kw w watts hz ph phase % ft feet m mm mm2 in inch "
+    "inches awg kcmil mcm c degc f degf deg rpm s sec min sf pu ohm ohms kva va"
+)
 
 # When a group heading maps to the key field, a leaf mapping to one of the
 # value fields really names a part of the group (CONDUCTORS / PHASE is the
@@ -192,11 +198,11 @@ GROUP_ABSORBS: dict[str, frozenset[str]] = {
     "conductor": frozenset({"phase", "quantity", "voltage", "description"}),
     "bond": frozenset({"quantity"}),
     "raceway": frozenset({"quantity", "description", "phase"}),
-    "ocpd": frozenset({"quantity", "phase", "fla", "description"}),
-    "overload": frozenset({"fla", "quantity"}),
-    "disconnect": frozenset({"quantity", "phase", "fla", "description"}),
-    "starting": frozenset({"quantity", "description"}),
-    "mocp": frozenset({"fla"}),
+    "ocpd": frozenset({"quantity", "phase", "fla", "description", "duty"}),
+    "overload": frozenset({"fla", "quantity", "duty"}),
+    "disconnect": frozenset({"quantity", "phase", "fla", "description", "duty"}),
+    "starting": frozenset({"quantity", "description", "duty"}),
+    "mocp": frozenset({"fla", "duty"}),
 }
 
 # A motor schedule needs one of these ...

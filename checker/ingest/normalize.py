@@ -12,10 +12,11 @@ from __future__ import annotations
 
 import json
 import re
+from collections.abc import Callable
 from dataclasses import dataclass, field
 from functools import lru_cache
 from pathlib import Path
-from typing import Any, Callable
+from typing import Any
 
 from jsonschema import Draft202012Validator
 
@@ -29,14 +30,14 @@ INPUT_CHECK = "cell-value"
 SCHEMA_CHECK = "record-schema"
 INPUT_RULE = "input"
 
-_SPARE_RE = re.compile(r"^\W*(spare|space|future|provision|not\s+used|deleted|vacant)\b", re.I)
-_TOTAL_RE = re.compile(r"^\W*(grand\s+)?(sub-?)?totals?\b|\btotal\s+(connected|hp|fla|load|kw|amps?)\b", re.I)
-_NOTE_RE = re.compile(r"^\s*(general\s+)?notes?\b|^\s*\(?\d{1,2}[.)]\s+[A-Za-z]|^\s*\*+\s*[A-Za-z]", re.I)
+_SPARE_RE = re.compile(r"^\W*(spare|space|future|provision|not\s+used|deleted|vacant)\b", re.IGNORECASE)
+_TOTAL_RE = re.compile(r"^\W*(grand\s+)?(sub-?)?totals?\b|\btotal\s+(connected|hp|fla|load|kw|amps?)\b", re.IGNORECASE)
+_NOTE_RE = re.compile(r"^\s*(general\s+)?notes?\b|^\s*\(?\d{1,2}[.)]\s+[A-Za-z]|^\s*\*+\s*[A-Za-z]", re.IGNORECASE)
 _MOTOR_TYPE_WORDS = (
-    (re.compile(r"wound|\bw\.?r\.?\b|slip[- ]?ring", re.I), "wound-rotor"),
-    (re.compile(r"synch", re.I), "synchronous"),
-    (re.compile(r"\bd\.?c\.?\b|direct[- ]current", re.I), "dc"),
-    (re.compile(r"squirrel|induction|\bsc\b|\bsqc\b|\bnema\s+design\b|design\s+[abcd]\b", re.I), "squirrel-cage"),
+    (re.compile(r"wound|\bw\.?r\.?\b|slip[- ]?ring", re.IGNORECASE), "wound-rotor"),
+    (re.compile(r"synch", re.IGNORECASE), "synchronous"),
+    (re.compile(r"\bd\.?c\.?\b|direct[- ]current", re.IGNORECASE), "dc"),
+    (re.compile(r"squirrel|induction|\bsc\b|\bsqc\b|\bnema\s+design\b|design\s+[abcd]\b", re.IGNORECASE), "squirrel-cage"),
 )
 
 # Layout fields whose presence makes a row a motor rather than a heading.

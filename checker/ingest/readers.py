@@ -23,7 +23,7 @@ import zipfile
 from dataclasses import dataclass
 from decimal import Decimal
 
-__all__ = ["InputError", "Grid", "read_grids", "cell_text"]
+__all__ = ["Grid", "InputError", "cell_text", "read_grids"]
 
 
 class InputError(Exception):
@@ -54,6 +54,7 @@ _ZIP_MAGIC = (b"PK\x03\x04", b"PK\x05\x06")
 _OLE2_MAGIC = b"\xd0\xcf\x11\xe0\xa1\xb1\x1a\xe1"
 _PDF_MAGIC = b"%PDF-"
 _ODS_MIMETYPE = b"application/vnd.oasis.opendocument.spreadsheet"
+_ODF_MIMETYPE = b"application/vnd.oasis.opendocument"
 
 _CSV_DELIMITERS = ",;\t|"
 _SNIFF_BYTES = 64 * 1024
@@ -129,8 +130,10 @@ def _zip_kind(data: bytes, name: str) -> str:
     except (zipfile.BadZipFile, zipfile.LargeZipFile, OSError, EOFError, ValueError, KeyError) as exc:
         raise InputError(f"{name} looks like an Excel workbook but the file is damaged ({_short_reason(exc)}); "
                          f"open it in a spreadsheet program, save it again as .xlsx and resubmit") from None
-    if mimetype.startswith(_ODS_MIMETYPE) or mimetype.startswith(b"application/vnd.oasis.opendocument"):
+    if mimetype.startswith(_ODS_MIMETYPE):
         raise InputError(f"{name} is an OpenDocument spreadsheet (.ods); open it and save it as .xlsx or CSV")
+    if mimetype.startswith(_ODF_MIMETYPE):
+        raise InputError(f"{name} is an OpenDocument file, not a spreadsheet; submit the schedule as .xlsx or CSV")
     if "xl/workbook.xml" in names:
         return "xlsx"
     if "xl/workbook.bin" in names:
@@ -210,9 +213,7 @@ def _read_workbook(data: bytes, name: str, sheet: str | None) -> list[Grid]:
             # openpyxl warns about features it drops (data validation, styles); not the reviewer's concern
             warnings.simplefilter("ignore")
             book = openpyxl.load_workbook(io.BytesIO(data), data_only=True, read_only=False)
-    except InputError:
-        raise
-    except Exception as exc:  # openpyxl raises many types for damaged files; none may escape as a traceback
+    except Exception as exc:  # noqa: BLE001 - openpyxl raises many types for damaged files; none may escape
         raise InputError(f"{name}: the workbook could not be opened ({_short_reason(exc)}); open it in a "
                          f"spreadsheet program, save it again as .xlsx and resubmit") from None
     try:
@@ -357,25 +358,34 @@ def detect_delimiter(sample: str) -> str:
     except csv.Error:
         sniffed = None
     order = ([sniffed] if sniffed else []) + [d for d in _CSV_DELIMITERS if d != sniffed]
-    best, best_key = ",", (0, 0)
+    best, best_key = ",", (0, 0, 0)
     for delimiter in order:
         key = _table_likeness(sample, delimiter)
-        if key > best_key:
+        if key[0] and key > best_key:
             best, best_key = delimiter, key
     return best
 
 
-def _table_likeness(sample: str, delimiter: str) -> tuple[int, int]:
-    """(records sharing the commonest width >= 2, that width)."""
+_DECIMAL_COMMA = re.compile(r"(?<=\d),(?=\d)")
+
+
+def _table_likeness(sample: str, delimiter: str) -> tuple[int, int, int]:
+    """(records sharing the commonest width >= 2, that width, -cells holding another delimiter).
+
+    The last key breaks ties such as ``P-1;7,5;9,6``: read with ';' no cell
+    holds a delimiter once decimal commas are set aside, read with ',' two do.
+    """
     try:
-        widths = [len(r) for r in csv.reader(io.StringIO(sample, newline=""), delimiter=delimiter) if any(r)]
+        records = [r for r in csv.reader(io.StringIO(sample, newline=""), delimiter=delimiter) if any(r)]
     except csv.Error:
-        return (0, 0)
+        return (0, 0, 0)
     counts: dict[int, int] = {}
-    for w in widths:
-        if w >= 2:
-            counts[w] = counts.get(w, 0) + 1
+    for record in records:
+        if len(record) >= 2:
+            counts[len(record)] = counts.get(len(record), 0) + 1
     if not counts:
-        return (0, 0)
+        return (0, 0, 0)
     width, count = max(counts.items(), key=lambda item: (item[1], item[0]))
-    return (count, width)
+    others = [d for d in _CSV_DELIMITERS if d != delimiter]
+    dirty = sum(1 for record in records for c in record if any(d in _DECIMAL_COMMA.sub("", c) for d in others))
+    return (count, width, -dirty)

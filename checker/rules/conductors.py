@@ -99,7 +99,7 @@ def check_conductor_ampacity(motor: Motor, ruleset: Ruleset, options: ReviewOpti
     assumptions = list(basis.assumptions) + list(factor.assumptions)
     conductor = record.get("conductor")
     if conductor is None:
-        return [finding(Status.NEEDS_INFO, f"No branch-circuit conductor on the schedule; it must carry at least "
+        return [finding(Status.NEEDS_INFO, f"No branch-circuit conductor could be read from the schedule; it must carry at least "
                         f"{calc(min_ampacity_a)} A.", limit=min_ampacity_a, trail=tuple(trail),
                         assumptions=tuple(assumptions))]
     if not conductor.get("material_stated", True):

@@ -65,8 +65,8 @@ def table_current(record: dict, ruleset: Ruleset) -> CurrentBasis:
     if value is None:
         return CurrentBasis(None, "none", (), (), fields,
                             f"{table.citation} lists no {num(hp)} hp motor at {column} V; give the nameplate FLA")
-    trail = (f"{table.citation}: {num(hp)} hp, {'three' if phase == 3 else 'single'}-phase, "
-             f"{column} V column = {num(value)} A",)
+    trail = ((f"{table.citation}: {num(hp)} hp, {'three' if phase == 3 else 'single'}-phase, "
+              f"{column} V column = {num(value)} A"),)
     assumption = f"No nameplate FLA on the schedule: {num(value)} A from {table.citation} used instead."
     return CurrentBasis(float(value), "table", trail, (assumption,), fields)
 

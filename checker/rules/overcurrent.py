@@ -145,7 +145,8 @@ def check_branch_ocpd(motor: Motor, ruleset: Ruleset, options: ReviewOptions) ->
     all_assumptions = basis.assumptions + assumptions + device_assumptions
     limits = [max(c.limit_a, minimum_a) for c in candidates]
     if ocpd is None:
-        return [finding(Status.NEEDS_INFO, f"No branch overcurrent device on the schedule; the most permitted is "
+        return [finding(Status.NEEDS_INFO, f"No overcurrent device rating could be read from the schedule; the most "
+                        f"permitted is "
                         f"{calc(min(limits))} A.", limit=min(limits), trail=tuple(trail), assumptions=all_assumptions)]
     rating_a = ocpd["rating_a"]
     kind = DEVICE_NAMES.get(device, "device")
@@ -182,8 +183,8 @@ def check_ocpd_standard_rating(motor: Motor, ruleset: Ruleset, options: ReviewOp
         return Finding(STANDARD_CHECK_ID, spec.rule, status, message, unit="A", fields=("ocpd",),
                        citation=spec.citation, **kw)
 
-    if ocpd is None:
-        return [finding(Status.NEEDS_INFO, "No overcurrent device rating on the schedule.")]
+    if ocpd is None:  # nothing to compare; branch-ocpd already asks for the device
+        return []
     rating_a = ocpd["rating_a"]
     if rating_a in (table.values or ()):
         return [finding(Status.PASS, f"{num(rating_a)} A is a standard rating ({table.citation}).", provided=rating_a)]

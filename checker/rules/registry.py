@@ -8,8 +8,8 @@ finding on every motor.
 """
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass
-from typing import Callable
 
 from checker.model import Finding, Motor
 from checker.rules.common import ReviewOptions

@@ -212,7 +212,7 @@ def _resolve(name_or_path: str | pathlib.Path) -> pathlib.Path:
     return path
 
 
-@functools.lru_cache(maxsize=None)
+@functools.cache
 def _load_path(path: pathlib.Path) -> Ruleset:
     try:
         raw = path.read_bytes()
