@@ -14,7 +14,7 @@ from pathlib import Path
 from checker.ingest.layout import LocatedTable, describe_columns, locate_tables
 from checker.ingest.normalize import normalize_table
 from checker.ingest.readers import Grid, InputError, read_grids
-from checker.model import MotorReview, Review, SkippedRow, SourceRef
+from checker.model import MotorReview, Review, SkippedRow
 from checker.rules.common import ReviewOptions
 from checker.rules.registry import CHECKS, runnable
 from checker.rules.ruleset import Ruleset, RulesetError, load_ruleset
@@ -65,7 +65,7 @@ def _outside_reason(index: int, tables: list[LocatedTable], cells: list[str]) ->
 def _read_grid(grid: Grid, tables: list[LocatedTable], motors: list, skipped: list, notes: list, ruleset: Ruleset,
                options: ReviewOptions, not_run: dict) -> None:
     covered: set[int] = set()
-    rows_skipped: list[tuple[int, SkippedRow]] = []
+    rows_skipped: list[tuple[tuple[int, int], SkippedRow]] = []
     for table in tables:
         covered.update(range(table.data_first, table.data_last + 1))
         result = normalize_table(table)
@@ -81,7 +81,7 @@ def _read_grid(grid: Grid, tables: list[LocatedTable], motors: list, skipped: li
                 findings.extend(CHECKS[cid].function(motor, ruleset, options))
             motors.append(MotorReview(motor, tuple(findings)))
         for row in result.skipped:
-            rows_skipped.append((row.source.row, row))
+            rows_skipped.append(((row.source.page or 0, row.source.row), row))
         if result.hidden_motor_rows:
             rows = ", ".join(str(r) for r in result.hidden_motor_rows)
             notes.append(f"Sheet {grid.sheet}: rows {rows} are hidden in the workbook; they were reviewed all the same.")
@@ -89,9 +89,9 @@ def _read_grid(grid: Grid, tables: list[LocatedTable], motors: list, skipped: li
         if index in covered:
             continue
         reason = _outside_reason(index, tables, cells)
-        source = SourceRef(grid.file, grid.row_numbers[index], sheet=grid.sheet)
+        source = grid.source(index)
         text = " | ".join(c for c in cells if c)
-        rows_skipped.append((source.row, SkippedRow(source, reason, text[:200])))
+        rows_skipped.append(((source.page or 0, source.row), SkippedRow(source, reason, text[:200])))
     skipped.extend(row for _, row in sorted(rows_skipped, key=lambda item: item[0]))
 
 

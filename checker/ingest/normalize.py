@@ -156,7 +156,7 @@ def read_motor(table: LocatedTable, row_index: int, section: tuple[str, SourceRe
     grid = table.grid
     row_number = grid.row_numbers[row_index]
     cells = grid.rows[row_index]
-    row_source = SourceRef(grid.file, row_number, sheet=grid.sheet)
+    row_source = grid.source(row_index)
     record: dict[str, Any] = {}
     sources: dict[str, SourceRef] = {}
     raw: dict[str, str] = {}
@@ -256,7 +256,7 @@ def normalize_table(table: LocatedTable) -> TableResult:
         row_number = grid.row_numbers[index]
         mapped = {col.field: cells[col.index] for col in table.columns}
         reason = classify_row(cells, mapped, header_texts)
-        source = SourceRef(grid.file, row_number, sheet=grid.sheet)
+        source = grid.source(index)
         if reason is None:
             result.motors.append(read_motor(table, index, section))
             if row_number in grid.hidden_rows:

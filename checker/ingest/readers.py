@@ -23,6 +23,8 @@ import zipfile
 from dataclasses import dataclass
 from decimal import Decimal
 
+from checker.model import SourceRef
+
 __all__ = ["Grid", "InputError", "cell_text", "read_grids"]
 
 
@@ -47,6 +49,16 @@ class Grid:
     hidden_rows: frozenset[int]
     merged: tuple[tuple[int, int, int, int], ...]
     hidden: bool = False
+    # PDF tables: the page (as a viewer numbers it) of each row, and the table's
+    # index on its first page. None for spreadsheets and CSV.
+    row_pages: tuple[int, ...] | None = None
+    table: int | None = None
+
+    def source(self, index: int, column: str | None = None) -> SourceRef:
+        """Where grid row ``index`` (and optionally a column) is, as a person finds it."""
+        page = self.row_pages[index] if self.row_pages is not None else None
+        return SourceRef(self.file, self.row_numbers[index], sheet=self.sheet, page=page, table=self.table,
+                         column=column)
 
 
 # File signatures (first bytes of the file).
