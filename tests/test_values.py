@@ -474,8 +474,8 @@ def test_bad_bond_size_is_a_problem_but_keeps_the_phase_conductors():
 
 DEVICE_CASES = [
     ("125 A CB", {"rating_a": 125.0, "device": "breaker"}),
-    ("100AT/225AF", {"rating_a": 100.0, "frame_a": 225.0}),
-    ("100 AT / 225 AF", {"rating_a": 100.0, "frame_a": 225.0}),
+    ("100AT/225AF", {"rating_a": 100.0, "device": "breaker", "frame_a": 225.0}),
+    ("100 AT / 225 AF", {"rating_a": 100.0, "device": "breaker", "frame_a": 225.0}),
     ("125A 3P", {"rating_a": 125.0, "poles": 3}),
     ("3P-125A", {"rating_a": 125.0, "poles": 3}),
     ("30/3", {"rating_a": 30.0, "poles": 3}),
@@ -504,12 +504,12 @@ DEVICE_CASES = [
     ("BKR 20", {"rating_a": 20.0, "device": "breaker"}),
     ("30A breaker", {"rating_a": 30.0, "device": "breaker"}),
     ("100A MCB", {"rating_a": 100.0, "device": "breaker"}),
-    ("15AT", {"rating_a": 15.0}),
+    ("15AT", {"rating_a": 15.0, "device": "breaker"}),  # AT (ampere trip) only describes breakers
     ("5 6/10 A fuse", {"rating_a": 5.6, "device": "fuse"}),
     ("2-8/10 A fuse", {"rating_a": 2.8, "device": "fuse"}),
     ("17 1/2", {"rating_a": 17.5}),
     ("125", {"rating_a": 125.0}),
-    ("1,200 AT", {"rating_a": 1200.0}),
+    ("1,200 AT", {"rating_a": 1200.0, "device": "breaker"}),
     ("mcp 15a 3p", {"rating_a": 15.0, "device": "instantaneous-trip-breaker", "poles": 3}),
     ("225 A 3P 400 AF INVERSE-TIME CB",
      {"rating_a": 225.0, "device": "inverse-time-breaker", "frame_a": 400.0, "poles": 3}),

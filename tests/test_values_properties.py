@@ -135,8 +135,10 @@ def devices(draw):
     if draw(st.booleans()):
         value["device"] = draw(st.sampled_from(["time-delay-fuse", "non-time-delay-fuse", "fuse",
                                                 "inverse-time-breaker", "instantaneous-trip-breaker", "breaker"]))
-    if draw(st.booleans()):
+    if value.get("device", "breaker").endswith("breaker") and draw(st.booleans()):
+        # An ampere frame is read as a breaker: canonical values carry the frame only with a breaker kind.
         value["frame_a"] = draw(amps)
+        value.setdefault("device", "breaker")
     if draw(st.booleans()):
         value["poles"] = draw(st.integers(1, 4))
     return value

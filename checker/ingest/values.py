@@ -1295,6 +1295,8 @@ class _DeviceScan:
 
     def add(self, m: re.Match[str]) -> None:
         kind = m.lastgroup
+        if kind in ("at", "af"):  # ampere-trip / ampere-frame notation only describes circuit breakers
+            self.kinds.add("brk")
         if kind in ("at", "amp", "num"):
             self.ratings.append((_amount(m[kind]), m[kind]))
         elif kind == "af":
