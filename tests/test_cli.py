@@ -160,3 +160,8 @@ def test_python_dash_m_entry_point(tmp_path):
                           capture_output=True, text=True, timeout=120)
     assert proc.returncode == 1 and "Traceback" not in proc.stderr
     assert "result: FAIL" in proc.stdout
+
+
+def test_soft_starter_device_is_needs_info(demo_report):
+    _, report, _ = demo_report
+    assert _status(report, "P-404", "branch-ocpd") == ["needs-info"]
