@@ -128,21 +128,20 @@ def classify_row(cells: list[str], mapped: dict[str, str], header_texts: dict[st
     if not filled:
         return "blank row"
     first = filled[0]
-    label = mapped.get("tag") or mapped.get("description") or first
     if _SPARE_RE.match(mapped.get("tag", "")) or _SPARE_RE.match(mapped.get("description", "")) or (
             len(filled) <= 2 and _SPARE_RE.match(first)):
-        return f"spare or space, not a motor: '{_short(label)}'"
+        return "spare or space, not a motor"
     repeats = [f for f, text in mapped.items() if text and header_texts.get(f, "").lower().endswith(text.lower())]
     if len(repeats) >= 3 and len(repeats) * 2 >= len([t for t in mapped.values() if t]):
         return "repeated header row"
     if _TOTAL_RE.search(first) or _TOTAL_RE.search(mapped.get("tag", "")):
-        return f"total row: '{_short(' '.join(filled))}'"
+        return "total row"
     has_data = any(mapped.get(f) for f in _MOTOR_DATA_FIELDS)
     if _NOTE_RE.match(first) and (not has_data or len(filled) == 1):
-        return f"note: '{_short(' '.join(filled))}'"
+        return "note"
     if not has_data:
         if len(filled) <= 2:
-            return f"section heading: '{_short(' '.join(filled))}'"
+            return "section heading"
         return "no motor data in the row (no hp, kW, FLA, voltage, conductor or device)"
     return None
 
