@@ -40,6 +40,10 @@ _MOTOR_TYPE_WORDS = (
     (re.compile(r"squirrel|induction|\bsc\b|\bsqc\b|\bnema\s+design\b|design\s+[abcd]\b", re.IGNORECASE), "squirrel-cage"),
 )
 
+# Words that make a section heading name the equipment feeding the motors below it.
+_SOURCE_RE = re.compile(r"\b(mcc|panel|pnl|swbd|switchboard|switchgear|substation|bus|splitter|"
+                        r"[a-z]{0,3}dp|lp|pp|fed\s+from)\b|\b(mcc|lp|pp|dp)-?\d", re.I)
+
 # Layout fields whose presence makes a row a motor rather than a heading.
 _MOTOR_DATA_FIELDS = ("hp", "kw", "fla", "voltage", "voltage_phase", "conductor", "ocpd")
 
@@ -103,6 +107,12 @@ FIELD_READERS: dict[str, FieldReader] = {
 }
 
 
+_STRICT_LEFTOVER_FIELDS = frozenset({"conductor", "ocpd"})
+
+# A power cell whose own unit contradicts its column ('7.5 hp' under kW) is read in the unit it states.
+_OTHER_POWER_UNIT = {"kw": ("hp", values.parse_hp), "hp": ("kw", values.parse_kw)}
+
+
 @lru_cache(maxsize=1)
 def motor_validator() -> Draft202012Validator:
     schema = json.loads(SCHEMA_PATH.read_text(encoding="utf-8"))
@@ -140,7 +150,7 @@ def classify_row(cells: list[str], mapped: dict[str, str], header_texts: dict[st
     if _NOTE_RE.match(first) and (not has_data or len(filled) == 1):
         return "note"
     if not has_data:
-        if len(filled) <= 2:
+        if len(set(filled)) == 1 or (len(filled) == 2 and _SOURCE_RE.search(first)):
             return "section heading"
         return "no motor data in the row (no hp, kW, FLA, voltage, conductor or device)"
     return None
@@ -175,10 +185,22 @@ def read_motor(table: LocatedTable, row_index: int, section: tuple[str, SourceRe
         if reader is None or not text:
             continue
         parsed = reader.parser(text)
+        target = reader.target
+        if parsed.problem and col.field in _OTHER_POWER_UNIT:
+            other_field, other_parser = _OTHER_POWER_UNIT[col.field]
+            other = other_parser(text)
+            if other.value is not None and not other.problem:
+                parsed, target = other, other_field  # the unit written in the cell wins
         if parsed.problem:
             findings.append(_input_finding(
                 f"Cell {source.label()} ({col.header}) '{_short(text)}' could not be read: {parsed.problem}",
-                reader.target or col.field))
+                target or col.field))
+        elif parsed.value is not None and col.field in _STRICT_LEFTOVER_FIELDS:
+            leftovers = [n for n in parsed.notes if n.startswith("ignored '")]
+            if leftovers:  # unknown words in a conductor or device cell may change the answer
+                findings.append(_input_finding(
+                    f"Cell {source.label()} ({col.header}) '{_short(text)}' was read only in part "
+                    f"({'; '.join(leftovers)}); confirm the rest does not change it", target))
         if parsed.value is None:
             continue
         if reader.merge:
@@ -186,8 +208,8 @@ def read_motor(table: LocatedTable, row_index: int, section: tuple[str, SourceRe
                 record.setdefault(key, value)
                 sources.setdefault(key, source)
         else:
-            record[reader.target] = parsed.value
-            sources[reader.target] = source
+            record[target] = parsed.value
+            sources[target] = source
     _attach_conductor_extras(table, cells, row_source, record, sources, findings)
     if "fed_from" not in record and section is not None:
         record["fed_from"], sources["fed_from"] = section
@@ -261,9 +283,11 @@ def normalize_table(table: LocatedTable) -> TableResult:
             if row_number in grid.hidden_rows:
                 result.hidden_motor_rows.append(row_number)
             continue
-        if reason.startswith("section heading"):
+        if reason == "section heading":
             first_col = next(i for i, c in enumerate(cells) if c)
-            section = (" ".join(cells[first_col].split()), source.at_column(column_letter(first_col)))
+            heading = " ".join(cells[first_col].split())
+            # Only a heading naming a source (MCC, panel, ...) feeds the rows below; an area heading does not.
+            section = (heading, source.at_column(column_letter(first_col))) if _SOURCE_RE.search(heading) else None
         result.skipped.append(SkippedRow(source, reason, _short(" | ".join(c for c in cells if c), 200)))
     return result
 
