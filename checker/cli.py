@@ -34,12 +34,19 @@ def build_parser() -> argparse.ArgumentParser:
                             description="Review a submitted motor schedule and write reports.")
     review.add_argument("schedule", type=Path, metavar="SCHEDULE", help="the schedule as submitted (.xlsx or .csv)")
     review.add_argument("--code", default=None, metavar="RULESET",
-                        help="ruleset to review against (default cec-2015; see 'motorcheck codes')")
+                        help="ruleset to review against: a name from 'motorcheck codes' or a ruleset file (default: "
+                             "[project] code in ./motorcheck.toml, else cec-2015)")
+    review.add_argument("--amendments", type=Path, default=None, metavar="PATH",
+                        help="local amendments file that extends the ruleset (default: [project] amendments in "
+                             "./motorcheck.toml)")
     review.add_argument("--json", type=Path, metavar="PATH", help="JSON report path (default reports/<stem>.json)")
     review.add_argument("--html", type=Path, metavar="PATH", help="HTML report path (default reports/<stem>.html)")
+    review.add_argument("--csv", type=Path, metavar="PATH",
+                        help="also write the findings as CSV, one row per finding (formula-safe for spreadsheets)")
     review.add_argument("--sheet", metavar="NAME", help="read only this worksheet (default: find the schedule)")
-    review.add_argument("--strict", action="store_true",
-                        help="make unstated duty, motor type or starting method needs-info instead of assuming")
+    review.add_argument("--strict", action=argparse.BooleanOptionalAction, default=None,
+                        help="make unstated duty, motor type or starting method needs-info instead of assuming "
+                             "(default: strict when ./motorcheck.toml says assumptions = false)")
     review.add_argument("--quiet", action="store_true", help="print only the counts line and report paths")
     sub.add_parser("codes", help="list the rulesets with edition and how many values are verified",
                    description="List the available rulesets.")
@@ -59,17 +66,25 @@ def _cmd_review(args) -> int:
         raise _Unusable(f"{args.schedule} does not exist")
     if args.schedule.is_dir():
         raise _Unusable(f"{args.schedule} is a folder; give the schedule file")
-    review = review_schedule(args.schedule, code=args.code or "cec-2015", sheet=args.sheet,
-                             options=ReviewOptions(strict=args.strict))
+    from checker.config import effective_settings, load_config
+
+    code, amendments, strict = effective_settings(load_config(), args.code, args.amendments, args.strict)
+    review = review_schedule(args.schedule, code=code, sheet=args.sheet, options=ReviewOptions(strict=strict),
+                             amendments=amendments)
     report = review_to_dict(review, __version__)
     stem = args.schedule.stem
     json_path = args.json or Path("reports") / f"{stem}.json"
     html_path = args.html or Path("reports") / f"{stem}.html"
+    outputs = [json_path, html_path] + ([args.csv] if args.csv else [])
+    _refuse_overwriting_input(args.schedule, outputs)
     write_atomic(json_path, dumps(report))
     write_atomic(html_path, render_html(report))
+    if args.csv:
+        from checker.report.csv_report import render_csv
+        write_atomic(args.csv, render_csv(report))
     text = summary_text(report, max_lines=0 if args.quiet else 40)
     print(text)
-    print(f"Reports: {html_path}  {json_path}")
+    print(f"Reports: {html_path}  {json_path}" + (f"  {args.csv}" if args.csv else ""))
     return EXIT_FAIL if report["summary"]["findings"]["fail"] else EXIT_OK
 
 
@@ -90,6 +105,14 @@ class _Unusable(Exception):
     pass
 
 
+def _refuse_overwriting_input(schedule: Path, outputs: list[Path]) -> None:
+    """The submitted file is never written: refuse a report path that is the schedule itself."""
+    source = schedule.resolve()
+    for output in outputs:
+        if output.resolve() == source or (output.exists() and output.samefile(schedule)):
+            raise _Unusable(f"the report path {output} is the schedule being reviewed; choose another path")
+
+
 def main(argv: list[str] | None = None) -> int:
     parser = build_parser()
     args = parser.parse_args(argv)
@@ -108,10 +131,11 @@ def main(argv: list[str] | None = None) -> int:
 
 
 def _report_error(exc: Exception) -> int:
+    from checker.config import ConfigError
     from checker.ingest.readers import InputError
     from checker.rules.ruleset import RulesetError
 
-    if isinstance(exc, (InputError, RulesetError, _Unusable)):
+    if isinstance(exc, (InputError, RulesetError, ConfigError, _Unusable)):
         print(f"motorcheck: error: {exc}", file=sys.stderr)
         return EXIT_UNUSABLE
     if isinstance(exc, OSError):

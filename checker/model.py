@@ -160,6 +160,31 @@ class MotorReview:
 
 
 @dataclass(frozen=True, slots=True)
+class FeederReview:
+    """One feeder, or one group of motors fed from the same source, and what was found.
+
+    ``group`` is the source's name (``MCC-1``); ``motor_tags`` and
+    ``motor_sources`` are the motors that name it. ``feeder`` is the feeder
+    record as read (name, from, to, conductor, ocpd ...; None when the
+    schedule lists no feeder for the group), ``feeder_source`` its row and
+    ``feeder_sources`` its cells by field. ``computed`` holds the group's
+    minimum feeder ampacity and maximum feeder device (given for information
+    even when there is no feeder to check); ``findings`` are the group
+    checks' verdicts on the listed feeder.
+    """
+
+    group: str
+    motor_tags: tuple[str, ...] = ()
+    motor_sources: tuple[SourceRef, ...] = ()
+    feeder: dict[str, Any] | None = None
+    feeder_source: SourceRef | None = None
+    feeder_sources: dict[str, SourceRef] = field(default_factory=dict)
+    computed: dict[str, Any] = field(default_factory=dict)
+    findings: tuple[Finding, ...] = ()
+    notes: tuple[str, ...] = ()
+
+
+@dataclass(frozen=True, slots=True)
 class Review:
     """Everything a renderer needs. Renderers see nothing else."""
 
@@ -171,3 +196,4 @@ class Review:
     tables: tuple[dict[str, Any], ...] = ()
     notes: tuple[str, ...] = ()
     checks_not_run: tuple[dict[str, Any], ...] = ()
+    feeders: tuple[FeederReview, ...] = ()

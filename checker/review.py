@@ -9,15 +9,20 @@ from __future__ import annotations
 
 import hashlib
 from collections import defaultdict
+from collections.abc import Callable
+from operator import itemgetter
 from pathlib import Path
 
+from checker.ingest.feeders import (FeederRow, FeederTable, feeder_table_info, locate_feeder_tables,
+                                    read_feeder_table, split_heading_feeders, trim_motor_tables)
 from checker.ingest.layout import LocatedTable, describe_columns, locate_tables
-from checker.ingest.normalize import normalize_table
+from checker.ingest.normalize import frozen_value, normalize_table
 from checker.ingest.readers import Grid, InputError, read_grids
-from checker.model import MotorReview, Review, SkippedRow
+from checker.model import Motor, MotorReview, Review, SkippedRow
 from checker.rules.common import ReviewOptions
-from checker.rules.registry import CHECKS, runnable
-from checker.rules.ruleset import Ruleset, RulesetError, load_ruleset
+from checker.rules.feeders import review_feeders
+from checker.rules.registry import CHECKS, GROUP_CHECKS, runnable
+from checker.rules.ruleset import Ruleset, RulesetError, select_ruleset
 
 __all__ = ["InputError", "RulesetError", "review_schedule"]
 
@@ -30,31 +35,193 @@ def _ruleset_info(ruleset: Ruleset) -> dict:
          "citation": spec.citation, "verification": spec.verification}
         for spec in ruleset.checks.values()
     ]
+    if ruleset.extends is not None:  # local amendments: say what they changed, value by value
+        info["extends"] = ruleset.extends
+        info["base_sha256"] = ruleset.base_sha256
+        info["amendment"] = dict(ruleset.amendment or {})
+        info["amendments"] = [dict(change) for change in ruleset.amendments]
     return info
 
 
+class _ReadLog(dict):
+    """A copy of a motor record that notes the fields a check reads, and whether it reads them all or writes."""
+
+    __slots__ = ("read", "whole", "written")
+
+    def __init__(self, record: dict) -> None:
+        super().__init__(record)
+        self.read: set = set()
+        self.whole = self.written = False
+
+    def __getitem__(self, key):
+        self.read.add(key)
+        return dict.__getitem__(self, key)
+
+    def get(self, key, default=None):
+        self.read.add(key)
+        return dict.get(self, key, default)
+
+    def __contains__(self, key):
+        self.read.add(key)
+        return dict.__contains__(self, key)
+
+
+def _noting(flag: str, method: str):
+    def call(self, *args, **kwargs):
+        setattr(self, flag, True)
+        return getattr(dict, method)(self, *args, **kwargs)
+    call.__name__ = method
+    return call
+
+
+# Whatever looks at every key (or the key set) reads the whole record; these methods write to it.
+for _method in ("__iter__", "__len__", "__repr__", "__eq__", "__ne__", "__reversed__", "__or__", "__ror__",
+                "keys", "values", "items", "copy", "__reduce__", "__reduce_ex__"):
+    setattr(_ReadLog, _method, _noting("whole", _method))
+for _method in ("__setitem__", "__delitem__", "__ior__", "pop", "popitem", "setdefault", "update", "clear"):
+    setattr(_ReadLog, _method, _noting("written", _method))
+del _method
+
+
+class _MotorView:
+    """What a check sees while its reads are logged: the logged record, and any other Motor attribute
+    (read from the real motor, noted in ``others``)."""
+
+    __slots__ = ("record", "_motor", "others")
+
+    def __init__(self, motor: Motor, record: _ReadLog) -> None:
+        self.record, self._motor, self.others = record, motor, set()
+
+    def __getattr__(self, name: str):
+        self.others.add(name)
+        return getattr(self._motor, name)
+
+
+class _Frozen(dict):
+    """Hashable stand-ins of one record's values; a field the record lacks reads as _MISSING."""
+
+    __slots__ = ()
+
+    def __missing__(self, key):
+        return _MISSING
+
+
+_MISSING = object()
+
+
+def _key_getter(fields: tuple) -> Callable[[dict], object]:
+    return itemgetter(*fields) if fields else (lambda frozen: ())
+
+
+class _CheckMemo:
+    """Runs the per-motor checks, reusing a check's findings for a motor whose record agrees, value for
+    value, on every field that check has read so far.
+
+    Checks are pure functions of the motor record (the ruleset and options are fixed for a review), and
+    a check that reads the same values takes the same path, reads no other field and returns the same
+    findings; findings name fields, never cells, so they can be shared. A check that reads anything
+    but record fields, reads the whole record, or writes to it is run directly from then on (and if it
+    wrote, so is every check, as the written values would be missing from the keys).
+    """
+
+    def __init__(self, ruleset: Ruleset, options: ReviewOptions) -> None:
+        self.ruleset, self.options = ruleset, options
+        self.fields: dict[str, tuple] = {}          # check id -> fields read so far, sorted
+        self.keys: dict[str, Callable] = {}         # check id -> key of a frozen record for those fields
+        self.found: dict[str, dict] = {}            # check id -> key -> findings
+        self.direct: set[str] = set()
+        self.all_direct = False
+
+    def run(self, motor: Motor, check_ids: list[str]) -> tuple:
+        findings: list = []
+        record = motor.record
+        try:
+            frozen = None if self.all_direct else _Frozen(zip(record, map(frozen_value, record.values())))
+        except TypeError:
+            frozen = None
+        for cid in check_ids:
+            function = CHECKS[cid].function
+            if frozen is None or cid in self.direct:
+                findings.extend(function(motor, self.ruleset, self.options))
+                continue
+            if cid not in self.keys:
+                self.fields[cid], self.keys[cid], self.found[cid] = (), _key_getter(()), {}
+            cache = self.found[cid]
+            try:
+                key = self.keys[cid](frozen)
+                hit = cache.get(key)
+            except TypeError:
+                hit, key = None, None
+            if hit is not None:
+                findings.extend(hit)
+                continue
+            log = _ReadLog(record)
+            view = _MotorView(motor, log)
+            result = function(view, self.ruleset, self.options)
+            findings.extend(result)
+            if log.written:
+                record.clear()
+                record.update(dict.items(log))
+                self.all_direct, frozen = True, None
+                continue
+            if log.whole or view.others or key is None:
+                self.direct.add(cid)
+                continue
+            if not log.read <= set(self.fields[cid]):
+                fields = self.fields[cid] = tuple(sorted(set(self.fields[cid]) | log.read, key=str))
+                self.keys[cid] = _key_getter(fields)
+                cache.clear()
+                key = self.keys[cid](frozen)
+            cache[key] = tuple(result)
+        return tuple(findings)
+
+
 def _check_registry(ruleset: Ruleset) -> None:
-    unknown = sorted(set(ruleset.checks) - set(CHECKS))
+    unknown = sorted(set(ruleset.checks) - set(CHECKS) - set(GROUP_CHECKS))
     if unknown:
         raise RulesetError(f"{ruleset.path.name}: check(s) {', '.join(unknown)} have no implementation in motorcheck")
 
 
+def _pdf_place(grid: Grid) -> dict:
+    """Page and table of a PDF grid, and every page a continued table runs over; {} for spreadsheets."""
+    if grid.row_pages is None or not grid.rows:
+        return {}
+    first = grid.source(0)
+    pages = sorted(set(grid.row_pages))
+    return {"page": first.page, "table": first.table, **({"pages": pages} if len(pages) > 1 else {})}
+
+
+def _row_span(grid: Grid, first: int, last: int) -> str:
+    """'4-38', or for a PDF table continued over pages '4-38 (p. 1 table 2), 1-12 (p. 2 table 1)'."""
+    rn = grid.row_numbers
+    if grid.row_pages is None or grid.row_pages[first] == grid.row_pages[last]:
+        return f"{rn[first]}-{rn[last]}"
+    parts, start = [], first
+    for i in range(first, last + 1):
+        if i == last or grid.source(i + 1).page != grid.source(start).page:
+            where = grid.source(start)
+            parts.append(f"{rn[start]}-{rn[i]} (p. {where.page} table {where.table})")
+            start = i + 1
+    return ", ".join(parts)
+
+
 def _table_info(table: LocatedTable) -> dict:
     grid = table.grid
-    rn = grid.row_numbers
     return {
-        "sheet": grid.sheet, "status": "read",
-        "header_rows": f"{rn[table.header_first]}-{rn[table.header_last]}",
-        "data_rows": f"{rn[table.data_first]}-{rn[table.data_last]}" if table.data_last >= table.data_first else "",
+        "sheet": grid.sheet, **_pdf_place(grid), "status": "read",
+        "header_rows": _row_span(grid, table.header_first, table.header_last),
+        "data_rows": _row_span(grid, table.data_first, table.data_last) if table.data_last >= table.data_first else "",
         "columns": describe_columns(table),
         "unmapped": [f"{header}" for _, header in table.unmapped],
     }
 
 
-def _outside_reason(index: int, tables: list[LocatedTable], cells: list[str]) -> str:
+def _outside_reason(index: int, tables: list[LocatedTable], cells: list[str],
+                    feeder_tables: list[FeederTable] = ()) -> str:
     if not any(cells):
         return "blank row"
-    if index < tables[0].header_first:
+    firsts = [t.header_first for t in tables] + [t.first for t in feeder_tables]
+    if firsts and index < min(firsts):
         return "above the schedule header (title block)"
     for table in tables:
         if table.header_first <= index <= table.header_last:
@@ -63,32 +230,40 @@ def _outside_reason(index: int, tables: list[LocatedTable], cells: list[str]) ->
 
 
 def _read_grid(grid: Grid, tables: list[LocatedTable], motors: list, skipped: list, notes: list, ruleset: Ruleset,
-               options: ReviewOptions, not_run: dict) -> None:
+               options: ReviewOptions, not_run: dict, feeder_tables: list[FeederTable] = (),
+               feeder_rows: list[FeederRow] | None = None, memo: _CheckMemo | None = None) -> None:
+    memo = memo or _CheckMemo(ruleset, options)
     covered: set[int] = set()
     rows_skipped: list[tuple[tuple[int, int], SkippedRow]] = []
+    feeder_rows = [] if feeder_rows is None else feeder_rows
     for table in tables:
         covered.update(range(table.data_first, table.data_last + 1))
         result = normalize_table(table)
+        # Heading rows that carry a feeder's conductors or device are feeders, not motors.
+        result.motors, heading_feeders = split_heading_feeders(result.motors)
+        feeder_rows.extend(heading_feeders)
         columns = {col.field for col in table.columns}
-        active = [cid for cid in ruleset.checks if runnable(cid, columns)]
+        active = [cid for cid in ruleset.checks if cid in CHECKS and runnable(cid, columns)]
         for cid in ruleset.checks:
-            if cid not in active and result.motors:
+            if cid in CHECKS and cid not in active and result.motors:
                 entry = not_run.setdefault(cid, {"check": cid, "reason": CHECKS[cid].missing_reason, "motors": 0})
                 entry["motors"] += len(result.motors)
         for motor in result.motors:
-            findings = []
-            for cid in active:
-                findings.extend(CHECKS[cid].function(motor, ruleset, options))
-            motors.append(MotorReview(motor, tuple(findings)))
+            motors.append(MotorReview(motor, memo.run(motor, active)))
         for row in result.skipped:
             rows_skipped.append(((row.source.page or 0, row.source.row), row))
         if result.hidden_motor_rows:
             rows = ", ".join(str(r) for r in result.hidden_motor_rows)
             notes.append(f"Sheet {grid.sheet}: rows {rows} are hidden in the workbook; they were reviewed all the same.")
+    for feeder_table in feeder_tables:
+        covered.update(range(feeder_table.first, feeder_table.data_last + 1))
+        read, passed_over = read_feeder_table(feeder_table)
+        feeder_rows.extend(read)
+        rows_skipped.extend(((row.source.page or 0, row.source.row), row) for row in passed_over)
     for index, cells in enumerate(grid.rows):
         if index in covered:
             continue
-        reason = _outside_reason(index, tables, cells)
+        reason = _outside_reason(index, tables, cells, feeder_tables)
         source = grid.source(index)
         text = " | ".join(c for c in cells if c)
         rows_skipped.append(((source.page or 0, source.row), SkippedRow(source, reason, text[:200])))
@@ -103,15 +278,32 @@ def _duplicate_tag_notes(motors: list[MotorReview]) -> list[str]:
             for tag, where in seen.items() if len(where) > 1]
 
 
-def review_schedule(path: Path, code: str = "cec-2015", sheet: str | None = None,
-                    options: ReviewOptions | None = None) -> Review:
+def _sheet_notes(grids: list[Grid], tables: list[dict]) -> list[str]:
+    """Say which read sheets were hidden, when several sheets held a schedule, and what a format cannot show."""
+    read = list(dict.fromkeys(t["sheet"] for t in tables if t["status"] == "read" and t.get("sheet") is not None))
+    notes = [f"Sheet {g.sheet} is hidden in the workbook; its schedule was reviewed all the same."
+             for g in grids if g.hidden and g.sheet in read]
+    if len(read) > 1:
+        notes.append(f"Motor schedules were found on {len(read)} sheets ({', '.join(read)}); all were reviewed. "
+                     f"Check that none is an old copy of another.")
+    kinds = {g.kind for g in grids} & {"xls", "xlsb", "ods"}
+    if kinds:
+        notes.append(f"Read from a .{'/.'.join(sorted(kinds))} workbook: hidden rows and formulas saved without a "
+                     f"result cannot be detected in this format; saved formula results were used as they are.")
+    return notes
+
+
+def review_schedule(path: Path, code: str | None = "cec-2015", sheet: str | None = None,
+                    options: ReviewOptions | None = None, amendments: str | Path | None = None) -> Review:
     """Review one submitted schedule file against one ruleset.
 
+    ``code`` names the ruleset (None: the default, or the base of
+    ``amendments``); ``amendments`` is a local amendments file extending it.
     Raises InputError (the file cannot be used) or RulesetError (the ruleset
     is invalid); both carry a one-line message for the reviewer.
     """
     options = options or ReviewOptions()
-    ruleset = load_ruleset(code)
+    ruleset = select_ruleset(code, amendments)
     _check_registry(ruleset)
     path = Path(path)
     grids = read_grids(path, sheet)
@@ -120,22 +312,36 @@ def review_schedule(path: Path, code: str = "cec-2015", sheet: str | None = None
     notes: list[str] = []
     tables: list[dict] = []
     not_run: dict[str, dict] = {}
+    feeder_rows: list[FeederRow] = []
+    memo = _CheckMemo(ruleset, options)
     for grid in grids:
         located = locate_tables(grid)
-        if not located:
-            tables.append({"sheet": grid.sheet, "status": "passed over",
+        feeder_tables = locate_feeder_tables(grid, located)
+        located = trim_motor_tables(located, feeder_tables)
+        if not located and not feeder_tables:
+            tables.append({"sheet": grid.sheet, **_pdf_place(grid), "status": "passed over",
                            "reason": "no motor schedule header found"})
             continue
         tables.extend(_table_info(t) for t in located)
-        _read_grid(grid, located, motors, skipped, notes, ruleset, options, not_run)
+        tables.extend(feeder_table_info(t) for t in feeder_tables)
+        _read_grid(grid, located, motors, skipped, notes, ruleset, options, not_run, feeder_tables, feeder_rows, memo)
     if not motors and not any(t["status"] == "read" for t in tables):
-        seen = ", ".join(repr(g.sheet) for g in grids if g.sheet) or "the file"
+        seen = ", ".join(repr(g.sheet) if g.sheet else f"p. {g.row_pages[0]} table {g.table}"
+                         for g in grids if g.sheet or g.row_pages) or "the file"
         raise InputError(f"no motor schedule found in {path.name} (looked at {seen}); expected a header row with a "
                          f"tag column and hp, kW, volts or FLA columns")
+    if not motors and not feeder_rows:
+        where = ", ".join(f"{t['sheet']} rows {t['header_rows']}" if t.get("sheet") else f"rows {t['header_rows']}"
+                          for t in tables if t["status"] == "read" and t.get("header_rows"))
+        raise InputError(f"{path.name}: a motor schedule header was found ({where or 'see the file'}) but no motor "
+                         f"rows under it; nothing to review - check that the schedule's rows were saved in this file")
+    notes[:0] = _sheet_notes(grids, tables)
     notes.extend(_duplicate_tag_notes(motors))
+    # Group checks run after every motor is read: a feeder table may come on a later sheet.
+    feeders = review_feeders([m.motor for m in motors], feeder_rows, ruleset, options, GROUP_CHECKS)
     digest = hashlib.sha256(path.read_bytes()).hexdigest()
     input_info = {"file": path.name, "sha256": digest, "format": grids[0].kind if grids else "",
                   "sheets": [g.sheet for g in grids if g.sheet]}
     return Review(code=ruleset.id, ruleset=_ruleset_info(ruleset), input=input_info, motors=tuple(motors),
                   skipped=tuple(skipped), tables=tuple(tables), notes=tuple(notes),
-                  checks_not_run=tuple(not_run.values()))
+                  checks_not_run=tuple(not_run.values()), feeders=feeders)

@@ -228,3 +228,46 @@ def test_synchronous_motor_without_nameplate_current_is_needs_info():
 
 def test_standard_rating_check_is_silent_without_a_device():
     assert check_ocpd_standard_rating(motor(fla_a=10), RS, LENIENT) == []
+
+
+# ---- properties of the CEC device limit -------------------------------------------------------------------
+
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+_CEC_RATINGS = sorted(RS.table("table_13").values)
+_BREAKER_PERCENT = 250  # CEC Table 29, squirrel-cage full-voltage, inverse-time breaker (Red Seal CEC 2024 guide)
+
+
+@settings(max_examples=200, deadline=None)
+@given(fla=st.floats(0.5, 600), rating=st.sampled_from(_CEC_RATINGS),
+       device=st.sampled_from([None, "fuse", "breaker", "time-delay-fuse", "non-time-delay-fuse",
+                               "inverse-time-breaker"]),
+       starting=st.sampled_from([None, "full-voltage", "autotransformer", "star-delta"]),
+       phase=st.sampled_from([1, 3, None]))
+def test_cec_rounding_never_lets_a_device_exceed_the_limit(fla, rating, device, starting, phase):
+    """Under the CEC a passing device never exceeds the computed limit (or the 15 A small-motor minimum):
+    there is no rounding up to the next standard rating."""
+    f = one(check_branch_ocpd(motor(fla_a=fla, phase=phase, starting=starting, ocpd=ocpd(rating, device)),
+                              RS, LENIENT))
+    if f.status is Status.PASS:
+        assert rating <= f.limit + 1e-9
+        assert f.limit <= max(fla * 3.0, 15) + 1e-9  # no Table 29 cell exceeds 300 %
+
+
+@settings(max_examples=100, deadline=None)
+@given(fla=st.floats(0.5, 600), low=st.sampled_from(_CEC_RATINGS), high=st.sampled_from(_CEC_RATINGS))
+def test_cec_larger_device_never_passes_where_a_smaller_failed(fla, low, high):
+    low, high = sorted((low, high))
+    rank = {Status.PASS: 0, Status.NEEDS_INFO: 1, Status.FAIL: 2}
+    small = one(check_branch_ocpd(motor(fla_a=fla, phase=3, ocpd=ocpd(low, "breaker")), RS, LENIENT))
+    big = one(check_branch_ocpd(motor(fla_a=fla, phase=3, ocpd=ocpd(high, "breaker")), RS, LENIENT))
+    assert rank[big.status] >= rank[small.status]
+
+
+@pytest.mark.parametrize("fla", [21.6, 32, 54, 99])
+def test_cec_limit_is_the_exact_percentage(fla):
+    # The limit is percent x FLC, unrounded (Red Seal CEC 2024: 54 A x 250 % = 135 A -> 125 A breaker).
+    f = one(check_branch_ocpd(motor(fla_a=fla, phase=3, starting="full-voltage",
+                                    ocpd=ocpd(15, "inverse-time-breaker")), RS, LENIENT))
+    assert f.limit == pytest.approx(max(fla * _BREAKER_PERCENT / 100, 15))

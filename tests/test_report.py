@@ -106,7 +106,7 @@ def test_review_to_dict_validates_against_schema(report):
 
 def test_review_to_dict_key_order_is_fixed(report):
     assert list(report) == ["tool", "code", "ruleset", "input", "summary", "cautions", "notes", "tables",
-                            "motors", "skipped", "checks"]
+                            "motors", "skipped", "feeders", "checks"]
     assert list(report["motors"][0]["findings"][0]) == [
         "check", "rule", "status", "message", "limit", "provided", "unit", "trail", "assumptions", "citation", "cells"]
 

@@ -48,7 +48,8 @@ def test_cec_2015_loads_with_identity(cec):
     assert cec.edition == "2015"
     assert cec.country == "CA"
     assert "C22.1-15" in cec.code
-    assert set(cec.checks) == {"motor-current", "conductor-ampacity", "branch-ocpd", "ocpd-standard-rating"}
+    # Further checks (feeder groups, overloads ...) are added by their own issues; these four must stay.
+    assert {"motor-current", "conductor-ampacity", "branch-ocpd", "ocpd-standard-rating"} <= set(cec.checks)
     assert {"table_2", "table_4", "table_13", "table_27", "table_29", "table_44", "table_45"} <= set(cec.tables)
     assert len(cec.cautions) >= 3
     assert re.fullmatch(r"[0-9a-f]{64}", cec.sha256)
@@ -219,8 +220,8 @@ def test_minimal_ruleset_counts_and_lookups(tmp_path):
 
 
 def test_check_and_table_lookup_errors_are_helpful(cec):
-    with pytest.raises(KeyError, match="has no check 'overload'.*motor-current"):
-        cec.check("overload")
+    with pytest.raises(KeyError, match="has no check 'no-such-check'.*motor-current"):
+        cec.check("no-such-check")
     with pytest.raises(KeyError, match="has no table 'table_99'.*table_2"):
         cec.table("table_99")
 

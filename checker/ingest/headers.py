@@ -21,8 +21,9 @@ from __future__ import annotations
 # Canonical field ids a column can map to (order = report order).
 FIELDS: tuple[str, ...] = (
     "tag", "description", "quantity", "hp", "kw", "voltage", "phase", "frequency", "voltage_phase",
-    "fla", "mca", "mocp", "duty", "starting", "motor_type", "service_factor", "rpm", "enclosure",
-    "conductor", "bond", "raceway", "length", "ambient", "ocpd", "ocpd_type", "overload", "disconnect",
+    "fla", "mca", "mocp", "duty", "starting", "drive_input", "motor_type", "service_factor", "temp_rise", "rpm",
+    "enclosure",
+    "conductor", "bond", "raceway", "length", "ambient", "ccc", "ocpd", "ocpd_type", "overload", "disconnect",
     "fed_from", "remarks",
 )
 
@@ -98,11 +99,18 @@ FIELD_PATTERNS: dict[str, tuple[tuple[str, float], ...]] = {
         (r"controller|motor controller|control type|starter size", 0.8),
         (r"vfd|vsd|drive|control", 0.6),
     ),
+    "drive_input": (
+        (r"(?:vfd|vsd|afd|asd|drive|inverter)(?: rated)? input(?: " + _AMPS + r")?", 1.0),
+        (r"(?:rated )?input (?:amps?|amperes?|current)", 0.9),
+    ),
     "motor_type": (
         (r"motor type|type of motor|rotor|rotor type|motor kind|motor design", 1.0),
     ),
     "service_factor": (
         (r"service factor|sf|s f", 1.0),
+    ),
+    "temp_rise": (
+        (r"temp rise|temperature rise|rise|rated rise|insulation rise", 1.0),
     ),
     "rpm": (
         (r"rpm|r p m|speed|sync speed|synchronous speed", 1.0),
@@ -131,6 +139,9 @@ FIELD_PATTERNS: dict[str, tuple[tuple[str, float], ...]] = {
     ),
     "ambient": (
         (r"ambient|ambient temp|ambient temperature|amb|amb temp", 1.0),
+    ),
+    "ccc": (
+        (r"ccc|no of ccc|ccc in raceway|current carrying|current carrying conductors|no of current carrying conductors", 1.0),
     ),
     "ocpd": (
         (r"ocpd|ocp|overcurrent|overcurrent protection|overcurrent device|branch protection", 1.0),

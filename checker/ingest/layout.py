@@ -28,7 +28,6 @@ from functools import lru_cache
 
 from checker.ingest import headers as H
 from checker.ingest.readers import Grid
-from checker.model import column_letter
 
 __all__ = [
     "Column",
@@ -51,7 +50,8 @@ MIN_HEADERISH_SHARE = 1 / 3     # of a leaf row's cells that must read as header
 
 @dataclass(frozen=True)
 class Column:
-    """One mapped column: 0-based grid index, spreadsheet letter, canonical
+    """One mapped column: 0-based grid index, its label (``Grid.column_label``:
+    spreadsheet letter, or number in a PDF table), canonical
     field id (see ``headers.FIELDS``) and the header text as written, levels
     joined with ' / ' (whitespace and line breaks shown as single spaces)."""
 
@@ -374,7 +374,7 @@ def _evaluate_block(grid: Grid, first: int, last: int) -> _Block | None:
     assigned = _assign(candidates)
     if not assigned:
         return None
-    columns = tuple(Column(c, column_letter(c), f, texts[c]) for c, (f, _) in sorted(assigned.items()))
+    columns = tuple(Column(c, grid.column_label(c), f, texts[c]) for c, (f, _) in sorted(assigned.items()))
     unmapped = tuple((c, texts[c]) for c in sorted(texts) if c not in assigned)
     score = round(sum(s for _, s in assigned.values()), 4)
     return _Block(first, last, columns, unmapped, score, _is_motor_schedule({f for f, _ in assigned.values()}))
@@ -536,5 +536,5 @@ def locate_tables(grid: Grid) -> list[LocatedTable]:
 def describe_columns(table: LocatedTable) -> list[str]:
     """One line per header column: 'C: FLA (A) -> fla', or '-> not used'."""
     lines = [(c.index, f"{c.letter}: {c.header} -> {c.field}") for c in table.columns]
-    lines += [(i, f"{column_letter(i)}: {text} -> not used") for i, text in table.unmapped]
+    lines += [(i, f"{table.grid.column_label(i)}: {text} -> not used") for i, text in table.unmapped]
     return [line for _, line in sorted(lines)]

@@ -45,7 +45,16 @@ _SOURCE_RE = re.compile(r"\b(mcc|panel|pnl|swbd|switchboard|switchgear|substatio
                         r"[a-z]{0,3}dp|lp|pp|fed\s+from)\b|\b(mcc|lp|pp|dp)-?\d", re.I)
 
 # Layout fields whose presence makes a row a motor rather than a heading.
-_MOTOR_DATA_FIELDS = ("hp", "kw", "fla", "voltage", "voltage_phase", "conductor", "ocpd")
+_MOTOR_DATA_FIELDS = ("hp", "kw", "fla", "voltage", "voltage_phase", "conductor", "ocpd", "mca", "mocp")
+
+# Stands in for a formula saved without a value while a row is classified, so that a
+# row of such formulas is still read as a motor (and each formula reported), not skipped.
+_FORMULA_STAND_IN = "(formula without a saved value)"
+# Fields that hold amounts or sizes; a date or time there is a cell formatted as a date.
+_AMOUNT_FIELDS = frozenset({"hp", "kw", "fla", "voltage", "voltage_phase", "phase", "frequency", "service_factor",
+                            "conductor", "ocpd", "mca", "mocp"})
+_DATE_TEXT = re.compile(r"\d{4}-\d{2}-\d{2}(?:[ T]\d{2}:\d{2}(?::\d{2})?)?|\d{1,2}:\d{2}(?::\d{2})?"
+                        r"|\d{1,2}/\d{1,2}/\d{4}")
 
 
 def parse_motor_type(text: str) -> Parsed:
@@ -95,14 +104,21 @@ FIELD_READERS: dict[str, FieldReader] = {
     "frequency": FieldReader(parse_frequency, merge=True),
     "fla": FieldReader(values.parse_current_a, "fla_a"),
     "duty": FieldReader(values.parse_duty, "duty"),
-    "starting": FieldReader(values.parse_starting, "starting"),
+    "starting": FieldReader(values.parse_starting_details, "starting", merge=True),
     "motor_type": FieldReader(parse_motor_type, "motor_type"),
     "service_factor": FieldReader(values.parse_service_factor, "service_factor"),
     "conductor": FieldReader(values.parse_conductor, "conductor"),
     "ocpd": FieldReader(values.parse_device, "ocpd"),
     "fed_from": FieldReader(values.parse_text, "fed_from"),
-    "overload": FieldReader(values.parse_text, "overload"),
-    "disconnect": FieldReader(values.parse_text, "disconnect"),
+    "overload": FieldReader(values.parse_overload, "overload", merge=True),
+    "disconnect": FieldReader(values.parse_disconnect, "disconnect", merge=True),
+    "temp_rise": FieldReader(values.parse_temp_rise_c, "temp_rise_c"),
+    "length": FieldReader(values.parse_length_m, "length_m"),
+    "ambient": FieldReader(values.parse_ambient_c, "ambient_c"),
+    "ccc": FieldReader(values.parse_conductor_count, "current_carrying_conductors"),
+    "mca": FieldReader(values.parse_current_a, "mca_a"),
+    "mocp": FieldReader(values.parse_mocp, "mocp"),
+    "drive_input": FieldReader(values.parse_current_a, "drive_input_a"),
     "remarks": FieldReader(values.parse_text, "remarks"),
 }
 
@@ -111,6 +127,9 @@ _STRICT_LEFTOVER_FIELDS = frozenset({"conductor", "ocpd"})
 
 # A power cell whose own unit contradicts its column ('7.5 hp' under kW) is read in the unit it states.
 _OTHER_POWER_UNIT = {"kw": ("hp", values.parse_hp), "hp": ("kw", values.parse_kw)}
+# ... only when the cell names that unit: '7,5' under HP is not a kW value (a decimal comma, needs-info).
+_POWER_UNIT_WORD = {"hp": re.compile(r"(?<![a-z])(?:h\.?\s*p\.?|horse\s*-?\s*power)(?![a-z])", re.IGNORECASE),
+                    "kw": re.compile(r"(?<![a-z])kw(?![a-z])", re.IGNORECASE)}
 
 
 @lru_cache(maxsize=1)
@@ -118,6 +137,66 @@ def motor_validator() -> Draft202012Validator:
     schema = json.loads(SCHEMA_PATH.read_text(encoding="utf-8"))
     Draft202012Validator.check_schema(schema)
     return Draft202012Validator(schema)
+
+
+# Most rows are valid and most of their values repeat, so validity is decided field by field and
+# remembered per value: exact, because the motor schema's top level only has keywords that judge
+# each field on its own ("properties", "additionalProperties") or key presence ("required").
+# A row found invalid (or a schema that does not split so) is validated whole, for its messages.
+_SPLITTABLE_KEYWORDS = frozenset({"$schema", "$id", "title", "description", "$comment", "type", "required",
+                                  "additionalProperties", "properties", "$defs"})
+_LENGTH_ONLY_KEYWORDS = frozenset({"type", "minLength", "maxLength", "description", "title", "$comment"})
+_MAX_REMEMBERED = 200_000
+_field_validity: dict[tuple, bool] = {}
+
+
+@lru_cache(maxsize=1)
+def _field_validator() -> tuple[Draft202012Validator, tuple[str, ...], frozenset[str]] | None:
+    """(validator of one-field records, required fields, fields whose text is judged by its length
+    alone), or None when the schema's top level does not split into per-field checks."""
+    schema = json.loads(SCHEMA_PATH.read_text(encoding="utf-8"))
+    if not set(schema) <= _SPLITTABLE_KEYWORDS or schema.get("type", "object") != "object":
+        return None
+    by_length = frozenset(name for name, sub in schema.get("properties", {}).items()
+                          if isinstance(sub, dict) and sub.get("type") == "string" and set(sub) <= _LENGTH_ONLY_KEYWORDS)
+    one_field = Draft202012Validator({k: v for k, v in schema.items() if k != "required"})
+    return one_field, tuple(schema.get("required", ())), by_length
+
+
+def frozen_value(value: Any) -> Any:
+    """Hashable stand-in for a record value; the class is kept so that 1, 1.0 and True differ."""
+    cls = value.__class__
+    if cls is str or value is None:
+        return value
+    if cls is dict:
+        return cls, tuple((k, frozen_value(v)) for k, v in value.items())
+    if cls is list or cls is tuple:
+        return cls, tuple(frozen_value(v) for v in value)
+    return cls, value
+
+
+def record_valid(record: dict) -> bool | None:
+    """Whether ``record`` satisfies the motor schema (None: decide with the full validator)."""
+    split = _field_validator()
+    if split is None:
+        return None
+    one_field, required, by_length = split
+    if any(name not in record for name in required):
+        return False
+    try:
+        for name, value in record.items():
+            key = (name, len(value)) if value.__class__ is str and name in by_length else (name, frozen_value(value))
+            valid = _field_validity.get(key)
+            if valid is None:
+                valid = one_field.is_valid({name: value})
+                if len(_field_validity) >= _MAX_REMEMBERED:
+                    _field_validity.clear()
+                _field_validity[key] = valid
+            if not valid:
+                return False
+    except TypeError:  # a value that cannot be hashed: let the full validator judge it
+        return None
+    return True
 
 
 @dataclass
@@ -179,14 +258,26 @@ def read_motor(table: LocatedTable, row_index: int, section: tuple[str, SourceRe
         if text:
             raw[col.header or col.field] = text
         source = row_source.at_column(col.letter)
+        reader = FIELD_READERS.get(col.field)
+        if not text and (row_index, col.index) in grid.formula_cells:
+            findings.append(_input_finding(
+                f"Cell {source.label()} ({col.header}) holds a formula saved without its result; formulas are "
+                f"never calculated here - recalculate and save the workbook in a spreadsheet program, or type "
+                f"the value, and resubmit", (reader.target if reader else None) or col.field))
+            continue
         if col.field in ("bond", "raceway"):
             continue
-        reader = FIELD_READERS.get(col.field)
         if reader is None or not text:
             continue
-        parsed = reader.parser(text)
+        if col.field in _AMOUNT_FIELDS and _DATE_TEXT.fullmatch(text):
+            findings.append(_input_finding(
+                f"Cell {source.label()} ({col.header}) holds a date or time '{text}' where a number belongs; the "
+                f"cell is probably formatted as a date - check the value and resubmit", reader.target or col.field))
+            continue
+        parsed = reader.parser(values.with_header_hint(col.field, text, col.header))  # 'LENGTH (FT)', 'MAX FUSE'
         target = reader.target
-        if parsed.problem and col.field in _OTHER_POWER_UNIT:
+        if parsed.problem and col.field in _OTHER_POWER_UNIT and \
+                _POWER_UNIT_WORD[_OTHER_POWER_UNIT[col.field][0]].search(text):
             other_field, other_parser = _OTHER_POWER_UNIT[col.field]
             other = other_parser(text)
             if other.value is not None and not other.problem:
@@ -248,6 +339,8 @@ def _attach_conductor_extras(table, cells, row_source, record, sources, findings
 
 def _schema_findings(record: dict, sources: dict[str, SourceRef]) -> list[Finding]:
     """Validate against the motor schema; drop each offending field and say why."""
+    if record_valid(record):
+        return []
     findings = []
     bad_fields: set[str] = set()
     for error in sorted(motor_validator().iter_errors(record), key=lambda e: list(e.absolute_path)):
@@ -272,11 +365,15 @@ def normalize_table(table: LocatedTable) -> TableResult:
     grid = table.grid
     header_texts = {col.field: col.header.split(" / ")[-1] for col in table.columns}
     section: tuple[str, SourceRef] | None = None
+    formula_rows = {r for r, _ in grid.formula_cells}
     for index in range(table.data_first, table.data_last + 1):
         cells = grid.rows[index]
         row_number = grid.row_numbers[index]
+        if index in formula_rows:
+            cells = [_FORMULA_STAND_IN if (index, i) in grid.formula_cells and not c else c for i, c in enumerate(cells)]
         mapped = {col.field: cells[col.index] for col in table.columns}
         reason = classify_row(cells, mapped, header_texts)
+        cells = grid.rows[index]
         source = grid.source(index)
         if reason is None:
             result.motors.append(read_motor(table, index, section))

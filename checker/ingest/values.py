@@ -41,18 +41,27 @@ __all__ = [
     "format_duty",
     "format_hp",
     "format_voltage_phase",
+    "parse_ambient_c",
     "parse_conductor",
+    "parse_conductor_count",
     "parse_current_a",
     "parse_device",
+    "parse_disconnect",
     "parse_duty",
     "parse_hp",
     "parse_kw",
+    "parse_length_m",
+    "parse_mocp",
+    "parse_overload",
     "parse_phase",
     "parse_service_factor",
     "parse_starting",
+    "parse_starting_details",
+    "parse_temp_rise_c",
     "parse_text",
     "parse_voltage",
     "parse_voltage_phase",
+    "with_header_hint",
 ]
 
 # ---------------------------------------------------------------------------
@@ -1432,3 +1441,493 @@ def format_hp(value: float) -> str:
     if not math.isfinite(value) or value <= 0:
         raise ValueError(f"not a horsepower: {value!r}")
     return f"{_fmt_num(value)} HP"
+
+
+# ---------------------------------------------------------------------------
+# Overload, disconnect, run length, packaged-equipment and drive cells
+# ---------------------------------------------------------------------------
+#
+# parse_overload, parse_disconnect and parse_starting_details return merge dicts (like
+# parse_voltage_phase) so that the cell text is kept beside its reading. Shapes: motor.schema.json.
+
+_OL_CLASS_RE = re.compile(r"(?<![a-z])(?:trip\s*)?(?:class|cl)\.?\s*-?\s*(?P<cls>\d{1,2})(?![\d.])", re.IGNORECASE)
+_OL_PERCENT_RE = re.compile(r"(?P<pct>\d+(?:\.\d+)?)\s*%")
+_OL_RANGE_RE = re.compile(rf"(?P<lo>{_DEC})\s*(?:-|to|\.\.)\s*(?P<hi>{_DEC})(?![\d/])\s*(?:a|amps?|amperes?)?(?![a-z])",
+                          re.IGNORECASE)
+_OL_KIND_WORDS = (
+    ("integral", (r"integral|internal|inherent|thermal[\s-]*protect(?:or|ed|ion)|thermally[\s-]*protected"
+                  r"|t\.?p\.?|klixon")),
+    ("drive", r"vfd|vsd|afd|asd|drives?|inverter"),
+    ("soft-starter", r"soft[\s-]*start(?:er)?|rvss|ssrv"),
+    ("electronic", r"ssol|solid[\s-]*state|electronic|eol"),
+    ("heater", r"heaters?|htrs?|heater[\s-]*elements?"),
+)
+_OL_KIND_RE = re.compile("|".join(f"(?P<k{i}>{_word(p)})" for i, (_, p) in enumerate(_OL_KIND_WORDS)), re.IGNORECASE)
+_OL_CATALOGUE_RE = re.compile(r"(?<![a-z0-9.])[a-z]{1,3}-?\d+(?:\.\d+)?[a-z]?(?![a-z0-9])", re.IGNORECASE)
+_OL_LABELS = re.compile(r"ol|o|l|olr|overloads?|relays?|set|setting|sett|trip|at|by|in|with|w|c|adj|adjustable"
+                        r"|range|motor|protection|mounted|starter|fla|dial|mmp|mpcb|and", re.IGNORECASE)
+#: Trip classes of overload relays (IEC 60947-4-1 and UL 60947-4-1 classes 5, 10, 10A, 20, 30; common practice).
+OVERLOAD_TRIP_CLASSES = (5, 10, 15, 20, 30)
+
+
+def _ol_amounts(rest: str, setting: dict[str, Any], problems: list[str]) -> list[tuple[int, int]]:
+    """Read a percentage, a dial range or one current from the overload text; returns spans read."""
+    pct = _OL_PERCENT_RE.search(rest)
+    if pct:
+        setting["percent"] = float(pct["pct"])
+        if not 0 < setting["percent"] <= 1000:
+            problems.append(f"{_quote(pct.group())} is not a usable percentage of full-load current")
+        return [pct.span()]
+    rng = _OL_RANGE_RE.search(rest)
+    if rng:
+        lo, hi = (_to_float(rng[g], decimal_comma=False)[0] for g in ("lo", "hi"))
+        if lo is None or hi is None or not 0 < lo < hi <= MAX_CURRENT_A:
+            problems.append(f"cannot read the setting range {_quote(rng.group().strip())}")
+        else:
+            setting.update(range_min_a=lo, range_max_a=hi)
+        return [rng.span()]
+    catalogue = [c for c in _OL_CATALOGUE_RE.findall(rest) if not _OL_LABELS.fullmatch(c)]
+    if catalogue:
+        problems.append(f"{_quote(catalogue[0])} looks like a heater or relay catalogue number; "
+                        "give the trip current in amperes")
+        return []
+    matches = list(_NUMBER_RE.finditer(rest))
+    if len(matches) > 1:
+        problems.append(f"more than one current in {_quote(rest.strip())}; cannot tell which is the setting")
+    elif matches and matches[0]["a"]:
+        problems.append(f"{_quote(matches[0].group())} holds two values; cannot tell which is the setting")
+    elif matches:
+        value, problem, _ = _number_value(matches[0], pair_ok=False, decimal_comma=False)
+        problem = problem or _check_amount(value, "an overload setting", "A", MAX_CURRENT_A, rest.strip())
+        if problem:
+            problems.append(problem)
+        else:
+            setting["setting_a"] = value
+    return [m.span() for m in matches]
+
+
+@_cell_parser("an overload")
+def parse_overload(text: str) -> Parsed:
+    """Overload relay or heater cell -> ``{'overload': text, 'overload_setting': {...}}``.
+
+    'OL 27 A', '27A', 'set 26.5 A' -> kind 'setting' with setting_a; 'heater 4.83' -> kind 'heater'
+    (the number read as the heater's current in amperes); '24-32 A' -> kind 'range' (an adjustable
+    relay's dial range); 'OL 115%' -> kind 'percent' (of nameplate current); 'class 20 / 30A' -> a
+    setting with trip_class 20; 'CL 10', 'SSOL' -> kind 'no-setting'; 'INTEGRAL' -> 'integral'
+    (thermal protector in the motor); 'BY VFD' -> 'drive'; 'by soft starter' -> 'soft-starter'.
+    A setting written next to a drive or soft-starter word keeps it as ``provided_by``. A heater
+    catalogue code ('H1034', 'B6.25') is a problem: its trip current depends on the maker's table.
+    """
+    prepared = _prepare(text, "an overload")
+    if isinstance(prepared, Parsed):
+        return prepared
+    cleaned, notes = prepared
+    setting: dict[str, Any] = {}
+    problems: list[str] = []
+    rest = cleaned
+    m = _OL_CLASS_RE.search(rest)
+    if m:
+        if int(m["cls"]) in OVERLOAD_TRIP_CLASSES:
+            setting["trip_class"] = int(m["cls"])
+        else:
+            problems.append(f"trip class {m['cls']} is not 5, 10, 15, 20 or 30")
+        rest = rest[:m.start()] + " " + rest[m.end():]
+    kinds = [_OL_KIND_WORDS[int(k.lastgroup[1:])][0] for k in _OL_KIND_RE.finditer(rest)]
+    rest = _AMP_UNIT_RE.sub(" ", _OL_KIND_RE.sub(" ", rest))
+    distinct = list(dict.fromkeys(k for k in kinds if k != "heater"))
+    if len(distinct) > 1:
+        problems.append(f"names more than one kind of overload protection ({', '.join(distinct)})")
+    kind = distinct[0] if len(distinct) == 1 else None
+    spans = _ol_amounts(rest, setting, problems)
+    if kind == "integral" and len(setting) > ("trip_class" in setting):
+        problems.append(f"an integral thermal protector has no setting to write: {_quote(cleaned)}")
+    notes += _leftover_note(rest, spans, _OL_LABELS)
+    if problems:
+        return Parsed(problem="; ".join(problems), notes=tuple(notes))
+    if "percent" in setting:
+        setting["kind"] = "percent"
+    elif "range_min_a" in setting:
+        setting["kind"] = "range"
+    elif "setting_a" in setting:
+        setting["kind"] = "heater" if "heater" in kinds else "setting"
+        if "heater" in kinds:
+            notes.append("heater read as its current in amperes; the maker's heater table governs")
+    elif kind in ("integral", "drive", "soft-starter"):
+        setting["kind"] = kind
+    elif kind == "electronic" or "trip_class" in setting or "heater" in kinds:
+        setting["kind"] = "no-setting"
+    else:
+        return Parsed(problem=f"no overload setting, trip class or kind in {_quote(cleaned)}", notes=tuple(notes))
+    if kind in ("drive", "soft-starter", "electronic") and setting["kind"] != "no-setting" and kind != setting["kind"]:
+        setting["provided_by"] = kind
+    return Parsed({"overload": cleaned, "overload_setting": setting}, notes=tuple(notes))
+
+
+_DISC_AMOUNT = r"\d[\d,]*(?:\.\d+)?"
+_DISC_TOKEN_RE = re.compile(rf"""
+      (?P<triple>(?P<ta>{_DISC_AMOUNT})\s*a?\s*/\s*(?P<tp>[1-4])\s*p?\s*/\s*(?P<tf>{_DISC_AMOUNT})\s*(?:a\.?\s*f\.?|a)?)(?![a-z])
+    | (?P<pair>(?P<pa>{_DISC_AMOUNT})\s*a?\s*/\s*(?P<pb>{_DISC_AMOUNT}))\s*(?P<pbu>a\.?\s*f\.?|a|p(?:oles?)?)?(?![a-z\d])
+    | (?P<hp>{_DISC_AMOUNT})\s*-?\s*(?:h\.?\s*p\.?|horse\s*power)(?![a-z])
+    | (?P<fa>{_DISC_AMOUNT})\s*-?\s*(?:a\.?\s*f\.?|a(?:mps?)?\s*fuses?|fuses?)(?![a-z])
+    | (?P<sa>{_DISC_AMOUNT})\s*-?\s*a\.?\s*s\.?(?![a-z])
+    | (?<![\d.])(?P<poles>[1-4])\s*-?\s*p(?:oles?)?(?![a-z])
+    | (?P<amp>{_DISC_AMOUNT})\s*-?\s*(?:a|amps?|amperes?)(?![a-z])\.?
+    | (?P<num>{_DISC_AMOUNT})
+    | (?P<nf>(?<![a-z])(?:n\.?\s*f\.?(?:d\.?)?|non[\s-]*fused|non[\s-]*fusible|unfused)(?![a-z]))
+    | (?P<fused>(?<![a-z])(?:fused|fusible|fsd|fds|fs)(?![a-z]))
+    | (?P<cw>(?<![a-z])(?:c/w|w/|with|complete\s+with)(?![a-z]))
+    | (?P<lock>(?<![a-z])(?:lockable|lock[\s-]*(?:off|out)|padlockable|lock)(?![a-z]))
+    | (?P<brk>(?<![a-z])(?:breakers?|bkrs?|brkrs?|c\.?b\.?|mcc|comb(?:ination|\.)?|panel)(?![a-z]))
+    | (?P<integral>(?<![a-z])(?:integral|unit[\s-]*mounted|factory[\s-]*mounted|on[\s-]*unit|built[\s-]*in)(?![a-z]))
+    | (?P<general>(?<![a-z])(?:toggle|snap\s*switch|manual\s*(?:motor\s*)?(?:starter|switch)|mms)(?![a-z]))
+    | (?P<plug>(?<![a-z])(?:plug|cord(?:\s*(?:and|&)\s*plug)?|receptacle|cord[\s-]*connected)(?![a-z]))
+    | (?P<at>(?:@|(?<![a-z])at(?=\s+[a-z]))\s*.*$)
+""", re.IGNORECASE | re.VERBOSE)
+_DISC_ENCLOSURE_RE = re.compile(r"(?<![a-z0-9])(?:nema|type)\s*-?\s*\d{1,2}[a-z]{0,2}(?![a-z0-9])"
+                                r"|(?<![a-z0-9])(?:n?4x|n?3r|n12)(?![a-z0-9])", re.IGNORECASE)
+_DISC_LABELS = re.compile(r"disc|disconnect|sw|switch|safety|hd|heavy|duty|gd|general|rated|motor|circuit|size"
+                          r"|and|in|of|a|amps?|ss|stainless|enclosed|enclosure|visible|blade|rotary|3ph|ph", re.IGNORECASE)
+
+
+def _disc_amount(raw: str, what: str, text: str, problems: list[str]) -> float | None:
+    value, problem, _ = _to_float(raw, decimal_comma=False)
+    problem = problem or _check_amount(value, what, "A", MAX_RATING_A, text)
+    if problem:
+        problems.append(problem)
+        return None
+    return value
+
+
+@_cell_parser("a disconnect")
+def parse_disconnect(text: str) -> Parsed:
+    """Disconnecting-means cell -> ``{'disconnect': text, 'disconnect_switch': {...}}``.
+
+    '100A NF', '30/3 NF', '200A NF @ PUMP' (location noted) -> a non-fused switch; '60/3/45',
+    '60A/3P/45AF', '60 A FUSED c/w 45 A', '60/45' -> a 60 A fused switch with 45 A fuses
+    ('AF' in a disconnect cell is amperes of fuse, 'AS' amperes of switch); '30A FUSED' -> fused,
+    fuse size not given; '10 HP', '30A 10HP' -> a horsepower rating. Words without a rating:
+    'LOCKABLE @ MCC', 'BKR', 'COMB' -> means 'branch-device' (the branch breaker or combination
+    starter serves as the disconnect); 'INTEGRAL' -> 'integral'; 'TOGGLE' -> 'general-use-switch';
+    'PLUG', 'CORD & PLUG' -> 'plug'.
+    """
+    prepared = _prepare(text, "a disconnect")
+    if isinstance(prepared, Parsed):
+        return prepared
+    cleaned, notes = prepared
+    rest = _DISC_ENCLOSURE_RE.sub(" ", cleaned)
+    switch: dict[str, Any] = {}
+    amps: list[float] = []
+    fuses: list[float] = []
+    poles: set[int] = set()
+    words: set[str] = set()
+    problems: list[str] = []
+    spans: list[tuple[int, int]] = []
+    after_cw = False
+    for m in _DISC_TOKEN_RE.finditer(rest):
+        spans.append(m.span())
+        kind = next(k for k in ("triple", "pair", "hp", "fa", "sa", "poles", "amp", "num", "nf", "fused", "cw",
+                                "lock", "brk", "integral", "general", "plug", "at") if m[k] is not None)
+        if kind == "at":
+            notes.append(f"location {_quote(m.group().strip())}")
+        elif kind == "triple":
+            for raw, bucket in ((m["ta"], amps), (m["tf"], fuses)):
+                value = _disc_amount(raw, "a disconnect rating", cleaned, problems)
+                if value is not None:
+                    bucket.append(value)
+            poles.add(int(m["tp"]))
+        elif kind == "pair":
+            first = _disc_amount(m["pa"], "a disconnect rating", cleaned, problems)
+            unit = (m["pbu"] or "").lower().replace(".", "").replace(" ", "")
+            if unit.startswith("p") or (not unit.startswith("af") and m["pb"].isdigit() and 1 <= int(m["pb"]) <= 4):
+                poles.add(int(m["pb"]) if m["pb"].isdigit() else 0)
+            else:
+                second = _disc_amount(m["pb"], "a fuse rating", cleaned, problems)
+                if second is not None:
+                    fuses.append(second)
+            if first is not None:
+                amps.append(first)
+        elif kind == "hp":
+            value, problem, _ = _to_float(m["hp"], decimal_comma=False)
+            problem = problem or _check_amount(value, "a horsepower rating", "hp", MAX_HP, cleaned)
+            if problem:
+                problems.append(problem)
+            else:
+                switch["hp"] = value
+        elif kind in ("fa", "sa", "amp", "num"):
+            value = _disc_amount(m[kind], "a disconnect rating", cleaned, problems)
+            if value is None:
+                continue
+            if kind == "fa" or (kind in ("amp", "num") and after_cw) or (kind == "amp" and amps and "fused" in words):
+                fuses.append(value)
+            else:
+                amps.append(value)
+        elif kind == "poles":
+            poles.add(int(m["poles"]))
+        elif kind == "cw":
+            after_cw = True
+            continue
+        else:
+            words.add(kind)
+        after_cw = after_cw and kind not in ("fa", "amp", "num")
+    if len(amps) > 1:
+        if len(amps) == 2 and not fuses and "nf" not in words:
+            fuses.append(amps.pop())  # '60A FUSED 45A': the second current is the fuse
+        else:
+            problems.append(f"more than one switch rating in {_quote(cleaned)}")
+    if len(fuses) > 1:
+        problems.append(f"more than one fuse rating in {_quote(cleaned)}")
+    if len(poles) > 1 or 0 in poles:
+        problems.append(f"pole count is not one number from 1 to 4 in {_quote(cleaned)}")
+    if "nf" in words and ("fused" in words or fuses):
+        problems.append(f"both non-fused and fused in {_quote(cleaned)}")
+    notes += _leftover_note(rest, spans, _DISC_LABELS)
+    if problems:
+        return Parsed(problem="; ".join(dict.fromkeys(problems)), notes=tuple(notes))
+    if amps:
+        switch["rating_a"] = amps[0]
+    if fuses:
+        switch["fuse_a"] = fuses[0]
+    if poles:
+        switch["poles"] = poles.pop()
+    if fuses or "fused" in words:
+        switch["fused"] = True
+    elif "nf" in words:
+        switch["fused"] = False
+    means = [w for w in ("integral", "general", "plug") if w in words]
+    if len(means) > 1:
+        return Parsed(problem=f"names more than one kind of disconnect in {_quote(cleaned)}", notes=tuple(notes))
+    if means:
+        switch["means"] = {"general": "general-use-switch"}.get(means[0], means[0])
+    elif "rating_a" in switch or "hp" in switch or "fused" in switch:
+        switch["means"] = "switch"
+    elif words & {"lock", "brk"}:
+        switch["means"] = "branch-device"
+    else:
+        return Parsed(problem=f"no disconnect rating or kind in {_quote(cleaned)}", notes=tuple(notes))
+    return Parsed({"disconnect": cleaned, "disconnect_switch": switch}, notes=tuple(notes))
+
+
+_LENGTH_RE = re.compile(rf"""
+      (?P<n>{_DEC})\s*(?:
+          (?P<m>m|metres?|meters?|mtrs?)(?![a-z])\.?
+        | (?P<ft>ft|feet|foot|')(?![a-z'])\.?
+        | (?P<km>km)(?![a-z])
+      )
+""", re.IGNORECASE | re.VERBOSE)
+_LENGTH_LABELS = re.compile(r"approx|approximately|run|length|len|route|circuit|one|way|est|estimated|about|ca|total", re.IGNORECASE)
+#: One international foot is exactly 0.3048 m (international yard and pound agreement, 1959).
+FOOT_M = 0.3048
+MAX_LENGTH_M = 100_000.0
+
+
+@_cell_parser("a run length")
+def parse_length_m(text: str) -> Parsed:
+    """One-way circuit length [m] from '45 m', '45m', '150 ft', "150'", '150 feet', '0.2 km'.
+
+    Feet are converted (1 ft = 0.3048 m) and the conversion is noted. A number with no unit is a
+    problem: the column header may carry it (see :func:`with_header_hint`).
+    """
+    prepared = _prepare(text, "a run length")
+    if isinstance(prepared, Parsed):
+        return prepared
+    cleaned, notes = prepared
+    found = list(_LENGTH_RE.finditer(cleaned))
+    if not found:
+        if _NUMBER_RE.search(cleaned):
+            return Parsed(problem=f"no unit (m or ft) on the length {_quote(cleaned)}", notes=tuple(notes))
+        return Parsed(problem=f"no length in {_quote(cleaned)}", notes=tuple(notes))
+    if len(found) > 1:
+        return Parsed(problem=f"more than one length in {_quote(cleaned)}", notes=tuple(notes))
+    m = found[0]
+    value, problem, note = _to_float(m["n"], decimal_comma=False)
+    if value is not None:
+        value = value * (FOOT_M if m["ft"] else 1000.0 if m["km"] else 1.0)
+    problem = problem or _check_amount(value, "a run length", "m", MAX_LENGTH_M, cleaned)
+    notes += ([note] if note else []) + _leftover_note(cleaned, [m.span()], _LENGTH_LABELS)
+    if problem:
+        return Parsed(problem=problem, notes=tuple(notes))
+    if m["ft"]:
+        notes.append(f"{_fmt_num(float(m['n'].replace(',', '')))} ft converted to {_short_num(round(value, 3))} m")
+    return Parsed(value, notes=tuple(notes))
+
+
+_MOCP_TOKEN_RE = re.compile(r"""
+      (?P<fuse>(?<![a-z])(?:fuses?|fusible|fused|mfs|time[\s-]*delay|td|dual[\s-]*element|class\s*(?:rk[15]|j|cc|t))(?![a-z0-9]))
+    | (?P<hacr>(?<![a-z])hacr(?![a-z]))
+    | (?P<brk>(?<![a-z])(?:c\.?b\.?|c/b|bkrs?|brkrs?|ckt\.?\s*bkr|circuit\s*breakers?|breakers?|mccb|itb)(?![a-z]))
+""", re.IGNORECASE | re.VERBOSE)
+_MOCP_LABELS = re.compile(r"max|maximum|size|mocp|mop|ocp|ocpd|overcurrent|protection|protective|device|rating|or|and"
+                          r"|type|a|amps?|amperes?|ckt|circuit|of|rated|nameplate|np|per|mfr", re.IGNORECASE)
+
+
+@_cell_parser("a maximum overcurrent rating")
+def parse_mocp(text: str) -> Parsed:
+    """Nameplate maximum overcurrent device of packaged equipment -> ``{'rating_a', 'allows', 'hacr'}``.
+
+    'MAX FUSE 40', 'Maximum Size Fuse 40 A', 'MFS 40' -> allows 'fuse' (a fuse-only marking);
+    '40A MAX FUSE OR HACR', 'MAX FUSE/CKT BKR 40' -> 'fuse-or-breaker'; 'MAX CKT BKR 40' ->
+    'breaker'; 'MOCP 40 A', 'MOP 40', '40' -> 'unstated'. ``hacr`` is True when HACR is named.
+    """
+    prepared = _prepare(text, "a maximum overcurrent rating")
+    if isinstance(prepared, Parsed):
+        return prepared
+    cleaned, notes = prepared
+    kinds, spans = set(), []
+    for m in _MOCP_TOKEN_RE.finditer(cleaned):
+        spans.append(m.span())
+        kinds.add(m.lastgroup)
+    rest = _MOCP_TOKEN_RE.sub(" ", cleaned)
+    rest = _AMP_UNIT_RE.sub(" ", rest)
+    pair = re.search(r"\d\s*/\s*\d", rest)
+    if pair:  # '40/50': two ratings (or a per-voltage pair), never a fraction of an ampere here
+        return Parsed(problem=f"{_quote(cleaned)} holds two values; cannot tell which is the maximum rating",
+                      notes=tuple(notes))
+    number = _single_number(rest, "a maximum overcurrent rating", "A", MAX_RATING_A, labels=_MOCP_LABELS)
+    if number.value is None:
+        return _with_notes(number, notes)
+    breaker = bool(kinds & {"hacr", "brk"})
+    allows = ("fuse-or-breaker" if "fuse" in kinds and breaker else "fuse" if "fuse" in kinds
+              else "breaker" if breaker else "unstated")
+    value = {"rating_a": number.value, "allows": allows}
+    if "hacr" in kinds:
+        value["hacr"] = True
+    return Parsed(value, notes=tuple(notes) + number.notes)
+
+
+_RISE_RE = re.compile(r"(?P<n>\d+(?:\.\d+)?)\s*(?:°\s*c|deg(?:rees?)?\.?\s*c|c|k)?(?![a-z0-9])", re.IGNORECASE)
+_RISE_LABELS = re.compile(r"rise|temp|temperature|rated|amb|ambient|max|insulation|ins|class|[abfh]|over|above|by|res"
+                          r"|resistance|deg|degrees|c", re.IGNORECASE)
+
+
+@_cell_parser("a temperature rise")
+def parse_temp_rise_c(text: str) -> Parsed:
+    """Rated temperature rise [°C] from '40 °C', '40C', '40 deg C', 'rise 80 K', '40'. One number 10-200."""
+    prepared = _prepare(text, "a temperature rise")
+    if isinstance(prepared, Parsed):
+        return prepared
+    cleaned, notes = prepared
+    cleaned = cleaned.replace("\u00b0", "°")
+    found = list(_RISE_RE.finditer(cleaned))
+    if len(found) != 1:
+        what = "no" if not found else "more than one"
+        return Parsed(problem=f"{what} temperature rise in {_quote(cleaned)}", notes=tuple(notes))
+    value = float(found[0]["n"])
+    if not 10 <= value <= 200:
+        return Parsed(problem=f"{_short_num(value)} °C is outside 10-200 °C for a temperature rise", notes=tuple(notes))
+    return Parsed(value, notes=tuple(notes + _leftover_note(cleaned, [found[0].span()], _RISE_LABELS)))
+
+
+_BYPASS_RE = re.compile(r"(?<![a-z])by[\s-]*pass(?:ed|es)?(?![a-z])", re.IGNORECASE)
+
+
+@_cell_parser("a starting method")
+def parse_starting_details(text: str) -> Parsed:
+    """:func:`parse_starting` as a merge dict, with ``drive_bypass`` True for a drive 'W/ BYPASS'."""
+    parsed = parse_starting(text)
+    if parsed.value is None:
+        return parsed
+    value: dict[str, Any] = {"starting": parsed.value}
+    if parsed.value == "vfd" and _BYPASS_RE.search(text):
+        value["drive_bypass"] = True
+    return Parsed(value, parsed.problem, notes=parsed.notes)
+
+
+_HINT_LENGTH_RE = re.compile(r"\((?P<u>m|metres?|meters?|ft|feet)\)|(?<![a-z])(?P<w>metres|meters|feet|ft)(?![a-z])",
+                             re.IGNORECASE)
+_HINT_HAS_UNIT_RE = re.compile(r"[a-z']", re.IGNORECASE)
+_HINT_FUSE_RE = re.compile(r"(?<![a-z])(?:fuses?|mfs)(?![a-z])", re.IGNORECASE)
+_HINT_BREAKER_RE = re.compile(r"(?<![a-z])(?:hacr|breakers?|bkrs?|brkrs?|cb)(?![a-z])", re.IGNORECASE)
+
+
+def with_header_hint(field: str, text: str, header: str) -> str:
+    """The cell text completed by what its column header says, for the fields where that matters.
+
+    A bare run length under 'LENGTH (FT)' gets ' ft'; a bare rating under 'MAX FUSE' gets
+    ' MAX FUSE' (a fuse-only marking), under 'MAX FUSE OR HACR BKR' ' MAX FUSE OR HACR BREAKER'.
+    Cells that state their own unit or device keep it (the cell wins). Other fields: unchanged.
+    """
+    if not text or not header:
+        return text
+    if field == "length" and not _HINT_HAS_UNIT_RE.search(text):
+        m = _HINT_LENGTH_RE.search(header)
+        if m:
+            unit = (m["u"] or m["w"]).lower()
+            return f"{text} {'ft' if unit.startswith('f') else 'm'}"
+    if field == "ambient" and not _HINT_HAS_UNIT_RE.search(text):  # 'AMBIENT (°F)' over a bare '104'
+        m = _HINT_TEMP_RE.search(_clean_glyphs(header))
+        if m:
+            return f"{text} °{m['u'].upper()}"
+    if field == "mocp" and not _MOCP_TOKEN_RE.search(text):
+        fuse, breaker = _HINT_FUSE_RE.search(header), _HINT_BREAKER_RE.search(header)
+        if fuse and breaker:
+            return f"{text} MAX FUSE OR {'HACR ' if 'hacr' in header.lower() else ''}BREAKER"
+        if fuse:
+            return f"{text} MAX FUSE"
+        if breaker:
+            return f"{text} MAX {'HACR ' if 'hacr' in header.lower() else ''}BREAKER"
+    return text
+
+
+# ---------------------------------------------------------------------------
+# Installation conditions: ambient temperature and conductor count
+# ---------------------------------------------------------------------------
+
+_HINT_TEMP_RE = re.compile(r"(?:°\s*|deg(?:rees?)?\.?\s*|\(\s*)(?P<u>[cf])(?![a-z])", re.IGNORECASE)
+_TEMP_RE = re.compile(r"(?P<neg>-\s*)?(?P<n>\d+(?:\.\d+)?)\s*(?P<u>°\s*[cf]|deg(?:rees?)?\.?\s*[cf]|[cf])?(?![a-z0-9])",
+                      re.IGNORECASE)
+_TEMP_LABELS = re.compile(r"amb|ambient|temp|temperature|max|maximum|design|room|outdoor|indoor|outside|inside"
+                          r"|summer|deg|degrees|approx", re.IGNORECASE)
+MIN_AMBIENT_C, MAX_AMBIENT_C = -50.0, 100.0  # mirror schemas/motor.schema.json ambient_c
+
+
+@_cell_parser("an ambient temperature")
+def parse_ambient_c(text: str) -> Parsed:
+    """Ambient temperature [°C] from '40 °C', '40C', '40 deg C', '104 °F', '104F', '-10 C'.
+
+    Fahrenheit is converted (°C = (°F - 32) / 1.8) and the conversion noted. A bare number is a
+    problem: 40 and 104 are both plausible ambients in different units (the column header may carry
+    the unit, see :func:`with_header_hint`). One number, -50 to 100 °C.
+    """
+    prepared = _prepare(text, "an ambient temperature")
+    if isinstance(prepared, Parsed):
+        return prepared
+    cleaned, notes = prepared
+    cleaned = cleaned.replace("\u00b0", "°")
+    found = list(_TEMP_RE.finditer(cleaned))
+    if len(found) != 1:
+        what = "no" if not found else "more than one"
+        return Parsed(problem=f"{what} ambient temperature in {_quote(cleaned)}", notes=tuple(notes))
+    m = found[0]
+    if not m["u"]:
+        return Parsed(problem=f"no unit on the ambient temperature {_quote(cleaned)}; write °C or °F",
+                      notes=tuple(notes))
+    value = float(m["n"]) * (-1 if m["neg"] else 1)
+    if m["u"].strip()[-1].lower() == "f":
+        celsius = (value - 32) / 1.8
+        notes.append(f"{_short_num(value)} °F converted to {_short_num(round(celsius, 1))} °C")
+        value = round(celsius, 1)
+    if not MIN_AMBIENT_C <= value <= MAX_AMBIENT_C:
+        return Parsed(problem=f"{_short_num(value)} °C is outside {_short_num(MIN_AMBIENT_C)} to "
+                              f"{_short_num(MAX_AMBIENT_C)} °C for an ambient temperature", notes=tuple(notes))
+    return Parsed(value, notes=tuple(notes + _leftover_note(cleaned, [m.span()], _TEMP_LABELS)))
+
+
+_COUNT_UNIT_RE = re.compile(r"(?<![a-z])(?:ccc|current[\s-]*carrying|cond(?:uctor)?s?|wires?|in\s+(?:raceway|conduit|cable))"
+                            r"(?![a-z])", re.IGNORECASE)
+MAX_CONDUCTOR_COUNT = 200  # mirrors schemas/motor.schema.json current_carrying_conductors
+
+
+@_cell_parser("a conductor count")
+def parse_conductor_count(text: str) -> Parsed:
+    """Number of current-carrying conductors in one raceway or cable from '6', '6 CCC', '9 conductors'."""
+    prepared = _prepare(text, "a conductor count")
+    if isinstance(prepared, Parsed):
+        return prepared
+    cleaned, notes = prepared
+    parsed = _single_number(_COUNT_UNIT_RE.sub(" ", cleaned), "a conductor count", "conductors",
+                            float(MAX_CONDUCTOR_COUNT))
+    if parsed.value is None:
+        return _with_notes(parsed, notes)
+    if parsed.value != int(parsed.value):
+        return Parsed(problem=f"a conductor count must be a whole number, not {_quote(cleaned)}", notes=tuple(notes))
+    return _with_notes(Parsed(int(parsed.value), notes=parsed.notes), notes)

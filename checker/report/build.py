@@ -7,6 +7,7 @@ order. The JSON emitter writes it as is; the HTML and text emitters only read it
 from __future__ import annotations
 
 import math
+from functools import lru_cache
 from collections.abc import Iterable, Mapping
 from datetime import date, datetime, time
 from enum import Enum
@@ -54,6 +55,13 @@ def plain(value: Any) -> Any:
     become ISO text (TOML can hold them), non-finite floats become None (JSON
     has no NaN) and anything else unknown becomes its ``str``.
     """
+    cls = value.__class__  # the exact built-in types first: records are made of them
+    if cls is str or cls is int or cls is bool or value is None:
+        return value
+    if cls is dict:
+        return {(key if key.__class__ is str else str(key)): plain(item) for key, item in value.items()}
+    if cls is list:
+        return [plain(item) for item in value]
     if value is None or isinstance(value, (bool, int, str)):
         return value
     if isinstance(value, float):
@@ -73,6 +81,7 @@ def plain(value: Any) -> Any:
     return str(value)
 
 
+@lru_cache(maxsize=256)
 def safe_file_name(path_text: str) -> str:
     """``path_text`` unchanged if relative, else only its final name.
 
@@ -106,19 +115,38 @@ def source_dict(source: model.SourceRef) -> dict[str, Any]:
     return out
 
 
-def cells_for(finding: model.Finding, sources: Mapping[str, model.SourceRef]) -> list[dict[str, Any]]:
-    """Cell locations of the fields a finding read; fields with no known cell are left out."""
+def cells_for(finding: model.Finding, sources: Mapping[str, model.SourceRef],
+              known: dict[str, dict[str, Any]] | None = None) -> list[dict[str, Any]]:
+    """Cell locations of the fields a finding read; fields with no known cell are left out.
+
+    ``known`` keeps the cell of each field already described for the same ``sources``.
+    """
     cells = []
     for field_name in finding.fields:
-        source = sources.get(field_name)
-        if source is None:
-            continue
-        cells.append({"field": field_name, "label": source.label(), "column": source.column})
+        cell = known.get(field_name) if known is not None else None
+        if cell is None:
+            source = sources.get(field_name)
+            if source is None:
+                continue
+            cell = {"field": field_name, "label": source.label(), "column": source.column}
+            if known is not None:
+                known[field_name] = cell
+        cells.append(cell)
     return cells
 
 
-def finding_dict(finding: model.Finding, sources: Mapping[str, model.SourceRef]) -> dict[str, Any]:
-    """One finding in report form (fixed key order)."""
+class FindingEntry(dict):
+    """One finding in report form: a plain dict whose keys are those of ``shared``, then ``cells``.
+
+    ``shared`` (every key but ``cells``) is one object for all motors given the very same
+    :class:`~checker.model.Finding` (a review reuses a check's findings for motors with equal
+    values), so the emitters can render that part once; ``cells`` is this motor's own.
+    """
+
+    __slots__ = ("shared",)
+
+
+def _shared_part(finding: model.Finding) -> dict[str, Any]:
     return {
         "check": finding.check,
         "rule": finding.rule,
@@ -130,15 +158,35 @@ def finding_dict(finding: model.Finding, sources: Mapping[str, model.SourceRef])
         "trail": [str(step) for step in finding.trail],
         "assumptions": [str(item) for item in finding.assumptions],
         "citation": finding.citation,
-        "cells": cells_for(finding, sources),
     }
 
 
-def motor_dict(motor_review: model.MotorReview) -> dict[str, Any]:
+def finding_dict(finding: model.Finding, sources: Mapping[str, model.SourceRef],
+                 shared: dict[int, tuple[model.Finding, dict[str, Any]]] | None = None,
+                 cells: dict[str, dict[str, Any]] | None = None) -> dict[str, Any]:
+    """One finding in report form (fixed key order).
+
+    ``shared`` maps ``id(finding)`` to the finding and its shared part, filled as it goes (the
+    finding is kept so that its id cannot be reused while the map lives); ``cells`` is the
+    ``known`` map of :func:`cells_for` for these ``sources``.
+    """
+    known = shared.get(id(finding)) if shared is not None else None
+    part = known[1] if known is not None else _shared_part(finding)
+    if shared is not None and known is None:
+        shared[id(finding)] = (finding, part)
+    entry = FindingEntry(part)
+    entry["cells"] = cells_for(finding, sources, cells)
+    entry.shared = part
+    return entry
+
+
+def motor_dict(motor_review: model.MotorReview,
+               shared: dict[int, tuple[model.Finding, dict[str, Any]]] | None = None) -> dict[str, Any]:
     """One motor with its reading findings first, then its check findings."""
     motor = motor_review.motor
+    cells: dict[str, dict[str, Any]] = {}
     findings = [
-        finding_dict(finding, motor.sources)
+        finding_dict(finding, motor.sources, shared, cells)
         for finding in (*motor.input_findings, *motor_review.findings)
     ]
     return {
@@ -168,30 +216,76 @@ def check_not_run_dict(entry: Mapping[str, Any]) -> dict[str, Any]:
     }
 
 
-def overall_result(motor_statuses: list[str], checks_not_run: list[dict[str, Any]]) -> str:
+NOT_CHECKED = "not-checked"  # a feeder group shown for information only
+
+
+def feeder_dict(feeder: model.FeederReview) -> dict[str, Any]:
+    """One feeder or motor group: its motors, the feeder as read, computed limits and findings."""
+    findings = [finding_dict(finding, feeder.feeder_sources) for finding in feeder.findings]
+    computed = plain(feeder.computed)
+    for key in ("min_ampacity_a", "ampacity_counted_a"):
+        if key in computed:
+            computed[key] = round_value(computed[key])
+    for entry in computed.get("max_device", []):
+        for key in ("limit_a", "counted_a", "standard_a"):
+            entry[key] = round_value(entry.get(key))
+    listed = None
+    if feeder.feeder is not None:
+        listed = {"record": plain(feeder.feeder),
+                  "source": source_dict(feeder.feeder_source) if feeder.feeder_source else None}
+    return {
+        "group": feeder.group,
+        "status": worst_status(item["status"] for item in findings) if findings else NOT_CHECKED,
+        "motors": [{"tag": tag, "source": source_dict(source)}
+                   for tag, source in zip(feeder.motor_tags, feeder.motor_sources)],
+        "feeder": listed,
+        "computed": computed,
+        "findings": findings,
+        "notes": [str(note) for note in feeder.notes],
+    }
+
+
+def feeder_summary(feeders: list[dict[str, Any]]) -> dict[str, Any]:
+    """Counts for the summary: groups, feeders listed, and checked feeders by status."""
+    return {
+        "groups": sum(1 for item in feeders if item["motors"]),
+        "listed": sum(1 for item in feeders if item["feeder"] is not None),
+        "by_status": count_statuses(item["status"] for item in feeders),
+    }
+
+
+def overall_result(motor_statuses: list[str], checks_not_run: list[dict[str, Any]],
+                   feeder_statuses: Iterable[str] = ()) -> str:
     """Result of the whole review.
 
-    Worst motor status; a review with no motors, or where a check could not
-    run on some motor, cannot be called a pass, so it is at best needs-info.
+    Worst motor (or checked feeder) status; a review with no motors, or where a
+    check could not run on some motor, cannot be called a pass, so it is at
+    best needs-info. Feeder groups shown only for information do not count.
     """
-    result = worst_status(motor_statuses)
+    checked = [status for status in feeder_statuses if status != NOT_CHECKED]
+    result = worst_status([*motor_statuses, *checked]) if motor_statuses else worst_status(())
     if result == model.Status.PASS.value and any(entry["motors"] > 0 for entry in checks_not_run):
         return model.Status.NEEDS_INFO.value
     return result
 
 
 def summary_dict(
-    motors: list[dict[str, Any]], skipped_count: int, checks_not_run: list[dict[str, Any]]
+    motors: list[dict[str, Any]], skipped_count: int, checks_not_run: list[dict[str, Any]],
+    feeders: list[dict[str, Any]] = (),
 ) -> dict[str, Any]:
+    """Counts and result. Every input row is a motor, a skipped row or a feeder row."""
     motor_statuses = [motor["status"] for motor in motors]
     finding_statuses = [finding["status"] for motor in motors for finding in motor["findings"]]
+    feeder_rows = sum(1 for item in feeders if item["feeder"] is not None)
     return {
-        "rows_read": len(motors) + skipped_count,
+        "rows_read": len(motors) + skipped_count + feeder_rows,
         "motors": len(motors),
         "skipped": skipped_count,
+        "feeder_rows": feeder_rows,
         "findings": count_statuses(finding_statuses),
         "motors_by_status": count_statuses(motor_statuses),
-        "result": overall_result(motor_statuses, checks_not_run),
+        "feeders": feeder_summary(list(feeders)),
+        "result": overall_result(motor_statuses, checks_not_run, (item["status"] for item in feeders)),
         "checks_not_run": checks_not_run,
     }
 
@@ -230,20 +324,23 @@ def review_to_dict(review: model.Review, tool_version: str) -> dict[str, Any]:
     dict
         Plain JSON-safe data; see the schema for every key.
     """
-    motors = [motor_dict(motor_review) for motor_review in review.motors]
+    shared: dict[int, tuple[model.Finding, dict[str, Any]]] = {}
+    motors = [motor_dict(motor_review, shared) for motor_review in review.motors]
     skipped = [skipped_dict(row) for row in review.skipped]
     checks_not_run = [check_not_run_dict(entry) for entry in review.checks_not_run]
+    feeders = [feeder_dict(feeder) for feeder in review.feeders]
     ruleset = plain(review.ruleset)
     return {
         "tool": {"name": TOOL_NAME, "version": str(tool_version)},
         "code": review.code,
         "ruleset": ruleset,
         "input": input_dict(review.input),
-        "summary": summary_dict(motors, len(skipped), checks_not_run),
+        "summary": summary_dict(motors, len(skipped), checks_not_run, feeders),
         "cautions": text_list(ruleset.get("cautions")),
         "notes": [str(item) for item in review.notes],
         "tables": [plain(table) for table in review.tables],
         "motors": motors,
         "skipped": skipped,
+        "feeders": feeders,
         "checks": [entry for entry in as_list(ruleset.get("checks")) if isinstance(entry, dict)],
     }

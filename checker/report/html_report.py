@@ -140,6 +140,7 @@ def _context(report: dict[str, Any]) -> dict[str, Any]:
         "notes": _list(report.get("notes")),
         "motors": motors,
         "skipped": _list(report.get("skipped")),
+        "feeders": [entry for entry in _list(report.get("feeders")) if isinstance(entry, dict)],
         "checks": checks,
         "appendix_ids": {str(entry.get("id")) for entry in checks},
         "verification": verification_pairs(ruleset),

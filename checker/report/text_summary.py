@@ -43,6 +43,23 @@ def finding_lines(report: dict[str, Any]) -> list[str]:
     return lines
 
 
+def feeder_lines(report: dict[str, Any], statuses: tuple[str, ...] = LISTED_STATUSES) -> list[str]:
+    """One line per finding of these statuses on a listed feeder, as ``<location>  FEEDER <group>  ...``."""
+    lines = []
+    for status in statuses:
+        for feeder in report.get("feeders", []):
+            listed = feeder.get("feeder") or {}
+            location = clean((listed.get("source") or {}).get("label", ""))
+            group = clean(feeder.get("group", ""))
+            for finding in feeder.get("findings", []):
+                if finding.get("status") != status:
+                    continue
+                parts = (location, f"FEEDER {group}", STATUS_WORDS[status], clean(finding.get("rule", "")),
+                         clean(finding.get("message", "")))
+                lines.append(clip("  ".join(parts)))
+    return lines
+
+
 def head_lines(report: dict[str, Any]) -> list[str]:
     """File and code; result and counts; checks that could not run (only when there are any)."""
     summary = report.get("summary", {})
@@ -54,10 +71,21 @@ def head_lines(report: dict[str, Any]) -> list[str]:
     counts = (
         f"result: {STATUS_WORDS.get(result, clean(result).upper())} | "
         f"{summary.get('rows_read', 0)} rows read: {summary.get('motors', 0)} motors, "
-        f"{summary.get('skipped', 0)} not reviewed | motors: {by_status.get('fail', 0)} fail, "
+        + (f"{summary['feeder_rows']} feeders, " if summary.get("feeder_rows") else "")
+        + f"{summary.get('skipped', 0)} not reviewed | motors: {by_status.get('fail', 0)} fail, "
         f"{by_status.get('needs-info', 0)} needs info, {by_status.get('pass', 0)} pass"
     )
     lines = [clip(first), counts]  # counts are never cut
+    feeders = summary.get("feeders") or {}
+    if feeders.get("groups") or feeders.get("listed"):
+        checked = feeders.get("by_status") or {}
+        line = f"feeders: {feeders.get('groups', 0)} motor groups, "
+        if feeders.get("listed"):
+            line += (f"{feeders['listed']} feeders listed | {checked.get('fail', 0)} fail, "
+                     f"{checked.get('needs-info', 0)} needs info, {checked.get('pass', 0)} pass")
+        else:
+            line += "no feeder listed (minimum ampacity and maximum device in the report, for information)"
+        lines.append(clip(line))
     not_run = summary.get("checks_not_run") or []
     if not_run:
         listed = ", ".join(f"{clean(entry.get('check', ''))} ({entry.get('motors', 0)} motors)" for entry in not_run)
@@ -70,10 +98,13 @@ def summary_text(report: dict[str, Any], max_lines: int = 40) -> str:
 
     Layout: ``<file>  <code>``; a counts line; one line per fail/needs-info
     finding as ``<location>  <tag>  <STATUS>  <rule>  <message>`` (at most
-    120 characters); ``... N more (see report)`` when lines were left out.
+    120 characters), with failed feeders (``<location>  FEEDER <group>  ...``)
+    before the motors and feeder needs-info after them; ``... N more (see
+    report)`` when lines were left out.
     """
     head = head_lines(report)
-    body = finding_lines(report)
+    # Feeder failures come first: one feeder can affect every motor on it.
+    body = feeder_lines(report, ("fail",)) + finding_lines(report) + feeder_lines(report, ("needs-info",))
     room = max(max_lines - len(head), 0)
     if len(body) > room:
         shown = max(room - 1, 0)

@@ -10,6 +10,14 @@ A ruleset is one TOML file in ``rulesets/`` (format explained at the top of
    column, and every ``row_verification`` key names an existing row or value,
 4. builds frozen dataclasses that the checks read.
 
+A file may instead *extend* another ruleset (``extends = "cec-2015"``) and
+change single values, parameters or citations under ``[override.*]`` (the
+syntax is described in the header of ``rulesets/nec-2023.toml`` and in
+DEVELOPERS.md). Such an amendment file is validated by the same schema, then
+applied to a copy of its base, and the result is validated and cross-checked
+like any ruleset. Every change is kept as ``{'path', 'old', 'new'}`` in
+:attr:`Ruleset.amendments` so that a report can list it.
+
 Any problem raises :class:`RulesetError` whose text is one line naming the
 file and the first problem found. Every number keeps the verification mark
 its file gives it ('published source', 'common practice' or 'from memory'),
@@ -17,13 +25,14 @@ so a report can tell a reviewer which values still need a licensed copy.
 """
 from __future__ import annotations
 
+import copy
 import functools
 import hashlib
 import json
 import os
 import pathlib
 import tomllib
-from dataclasses import dataclass
+from dataclasses import dataclass, field, replace
 from typing import Any
 
 from jsonschema import Draft202012Validator
@@ -32,6 +41,8 @@ from jsonschema.exceptions import SchemaError
 VERIFICATION_MARKS: tuple[str, ...] = ("published source", "common practice", "from memory")
 NO_VALUE = "-"  # how a ruleset file writes a code-table cell that has no value
 _MESSAGE_LIMIT = 240  # characters of a schema message kept in the one-line error
+MAX_EXTENDS_DEPTH = 4  # base -> amendment -> local amendment ... deeper chains are almost surely a mistake
+_LOADING: list[pathlib.Path] = []  # files being loaded right now (finds an `extends` loop)
 
 
 class RulesetError(Exception):
@@ -109,6 +120,11 @@ class Ruleset:
     tables: dict[str, Table]
     path: pathlib.Path
     sha256: str
+    document: dict = field(default_factory=dict, repr=False, compare=False)  # the (merged) file content
+    amendments: tuple[dict, ...] = ()  # {'path', 'old', 'new'} per value an amendment file changed
+    extends: str | None = None  # id of the base ruleset when this is an amendment file
+    amendment: dict | None = None  # the amendment file's [amendment] block
+    base_sha256: str | None = None
 
     def check(self, check_id: str) -> CheckSpec:
         try:
@@ -197,6 +213,26 @@ def load_ruleset(name_or_path: str | pathlib.Path) -> Ruleset:
     return _load_path(_resolve(name_or_path))
 
 
+DEFAULT_CODE = "cec-2015"  # the ruleset a review uses when neither the command line nor the project names one
+
+
+def select_ruleset(code: str | pathlib.Path | None, amendments: str | pathlib.Path | None = None) -> Ruleset:
+    """The ruleset a review applies: ``code`` (default :data:`DEFAULT_CODE`), or the amendments file
+    that extends it. With amendments and no code, the amendments' own base is used. An amendments
+    file that does not extend ``code`` is refused (one-line :class:`RulesetError`)."""
+    if amendments is None:
+        return load_ruleset(code if code is not None else DEFAULT_CODE)
+    amended = load_ruleset(pathlib.Path(amendments))
+    if amended.extends is None:
+        raise RulesetError(f"{amendments}: not an amendments file (it has no 'extends' key)")
+    if code is not None:
+        base = load_ruleset(code)
+        if base.id not in (amended.extends, amended.id):
+            raise RulesetError(f"{amendments}: amends {amended.extends}, but the review is against {base.id}; "
+                               f"choose the matching --code or amendments file")
+    return amended
+
+
 def _resolve(name_or_path: str | pathlib.Path) -> pathlib.Path:
     text = str(name_or_path)
     looks_like_path = isinstance(name_or_path, pathlib.Path) or text.endswith(".toml") or os.sep in text or "/" in text
@@ -214,6 +250,18 @@ def _resolve(name_or_path: str | pathlib.Path) -> pathlib.Path:
 
 @functools.cache
 def _load_path(path: pathlib.Path) -> Ruleset:
+    if path in _LOADING:
+        raise RulesetError(f"{path}: 'extends' loops back to this file")
+    if len(_LOADING) >= MAX_EXTENDS_DEPTH:
+        raise RulesetError(f"{path}: more than {MAX_EXTENDS_DEPTH} rulesets extend one another")
+    _LOADING.append(path)
+    try:
+        return _load_file(path)
+    finally:
+        _LOADING.pop()
+
+
+def _load_file(path: pathlib.Path) -> Ruleset:
     try:
         raw = path.read_bytes()
     except OSError as exc:
@@ -225,8 +273,175 @@ def _load_path(path: pathlib.Path) -> Ruleset:
     except tomllib.TOMLDecodeError as exc:
         raise RulesetError(f"{path}: not valid TOML: {_one_line(str(exc))}") from None
     _validate_schema(path, doc)
-    _cross_check(path, doc)
-    return _build(path, doc, hashlib.sha256(raw).hexdigest())
+    sha256 = hashlib.sha256(raw).hexdigest()
+    if "extends" not in doc:
+        _cross_check(path, doc)
+        return _build(path, doc, sha256)
+    base = _load_path(_resolve_base(doc["extends"], path))
+    if doc["id"] == base.id:
+        raise RulesetError(f"{path}: an amendment needs its own id (it has the id of its base, {base.id!r})")
+    try:
+        merged, changes = apply_amendment(base.document, doc)
+    except AmendmentError as exc:
+        raise RulesetError(f"{path}: {exc}") from None
+    _validate_schema(path, merged, "after applying it to " + base.id)
+    _cross_check(path, merged)
+    ruleset = _build(path, merged, sha256)
+    return replace(ruleset, amendments=tuple(changes), extends=base.id, amendment=dict(doc["amendment"]),
+                   base_sha256=base.sha256)
+
+
+def _resolve_base(ref: str, amendment_path: pathlib.Path) -> pathlib.Path:
+    """A base named like a ruleset ('cec-2015') is looked up in the rulesets directory; a
+    path ('../cec-2015.toml') is relative to the amendment file."""
+    if ref.endswith(".toml") or "/" in ref or os.sep in ref:
+        path = (amendment_path.parent / ref).resolve()
+        if not path.is_file():
+            raise RulesetError(f"{amendment_path}: extends {ref!r}, which is not a file ({path})")
+        return path
+    try:
+        return _resolve(ref)
+    except RulesetError as exc:
+        raise RulesetError(f"{amendment_path}: extends {exc}") from None
+
+
+class AmendmentError(Exception):
+    """An override that cannot be applied to its base (one line, without the file name)."""
+
+
+_AMENDMENT_KEYS = ("schema_version", "extends", "amendment", "override", "checks", "tables")
+
+
+def apply_amendment(base_doc: dict, amend: dict) -> tuple[dict, list[dict]]:
+    """Apply an amendment document to a copy of its base document.
+
+    Returns the merged document (a plain ruleset document, without
+    ``extends``/``amendment``/``override``) and the list of changes, each
+    ``{'path': 'tables.table_29.rows.dc.time-delay-fuse', 'old': 150.0, 'new': 175}``
+    (``old`` is None for something added). Values that an override leaves
+    unchanged are not listed. Everything changed is re-marked with the
+    amendment's verification mark so that ``verification_counts`` stays honest.
+    """
+    merged = copy.deepcopy(base_doc)
+    changes: list[dict] = []
+    mark = amend["amendment"]["verification"]
+    reference = amend["amendment"]["reference"]
+    for key, value in amend.items():
+        if key in _AMENDMENT_KEYS:
+            continue
+        if key == "cautions":
+            added = [c for c in value if c not in merged["cautions"]]
+            merged["cautions"] = merged["cautions"] + added
+            changes.extend({"path": "cautions", "old": None, "new": c} for c in added)
+        elif merged.get(key) != value:
+            if key not in ("id", "title"):  # identity of the amended ruleset, not a changed code value
+                changes.append({"path": key, "old": merged.get(key), "new": value})
+            merged[key] = value
+    override = amend.get("override", {})
+    for check_id, block in override.get("checks", {}).items():
+        if check_id not in merged["checks"]:
+            raise AmendmentError(f"override.checks.{check_id}: the base has no such check (add a new check "
+                                 f"under [checks.{check_id}] in full)")
+        _override_check(merged["checks"][check_id], block, f"checks.{check_id}", mark, reference, changes)
+    for name, block in override.get("tables", {}).items():
+        if name not in merged["tables"]:
+            raise AmendmentError(f"override.tables.{name}: the base has no such table (add a new table under "
+                                 f"[tables.{name}] in full)")
+        _override_table(merged["tables"][name], block, f"tables.{name}", mark, reference, changes)
+    for section in ("checks", "tables"):
+        for name, block in amend.get(section, {}).items():
+            if name in merged[section]:
+                raise AmendmentError(f"{section}.{name} already exists in the base; change it under "
+                                     f"[override.{section}.{name}]")
+            merged[section][name] = copy.deepcopy(block)
+            changes.append({"path": f"{section}.{name}", "old": None, "new": f"added: {block.get('title', name)}"})
+    return merged, changes
+
+
+def _override_check(check: dict, block: dict, where: str, mark: str, reference: str, changes: list[dict]) -> None:
+    changed_params: list[str] = []
+    for key, value in block.items():
+        if key == "params":
+            before = len(changes)
+            _merge_params(check["params"], value, f"{where}.params", changes)
+            changed_params += [c["path"].rsplit(".params.", 1)[1] for c in changes[before:]]
+        elif check.get(key) != value:
+            changes.append({"path": f"{where}.{key}", "old": check.get(key), "new": value})
+            check[key] = value
+    if changed_params and "verification" not in block:
+        check["verification"] = mark
+    if changed_params and "verified_by" not in block:
+        check["verified_by"] = (f"{check['verified_by']} AMENDED by {reference}: "
+                                f"{', '.join(changed_params)} (marked '{mark}').")
+
+
+def _merge_params(params: dict, update: dict, where: str, changes: list[dict]) -> None:
+    """Dicts merge key by key; anything else replaces the base value."""
+    for key, value in update.items():
+        old = params.get(key)
+        if isinstance(old, dict) and isinstance(value, dict):
+            _merge_params(old, value, f"{where}.{key}", changes)
+        elif old != value:
+            changes.append({"path": f"{where}.{key}", "old": old, "new": value})
+            params[key] = value
+
+
+def _override_table(table: dict, block: dict, where: str, mark: str, reference: str, changes: list[dict]) -> None:
+    marks = table.setdefault("row_verification", {})
+    for key, value in block.items():
+        if key in ("rows", "cells"):
+            if "rows" not in table:
+                raise AmendmentError(f"override.{where}.{key}: the base table is a list of values, not rows")
+            columns = table["columns"]
+            for row_key, row in value.items():
+                if key == "cells":
+                    if row_key not in table["rows"]:
+                        raise AmendmentError(f"override.{where}.cells names row {row_key!r}, which the base table "
+                                             f"does not have")
+                    unknown = [c for c in row if c not in columns]
+                    if unknown:
+                        raise AmendmentError(f"override.{where}.cells.{row_key} names column {unknown[0]!r}; the "
+                                             f"table's columns are {', '.join(columns)}")
+                    new_row = [row.get(c, old) for c, old in zip(columns, table["rows"][row_key])]
+                else:
+                    new_row = list(row)
+                if len(new_row) != len(columns):
+                    raise AmendmentError(f"override.{where}.rows: row {row_key!r} has {len(new_row)} values but the "
+                                         f"table has {len(columns)} columns")
+                old_row = table["rows"].get(row_key)
+                if old_row is None:
+                    changes.append({"path": f"{where}.rows.{row_key}", "old": None, "new": new_row})
+                else:
+                    changes.extend({"path": f"{where}.rows.{row_key}.{col}", "old": _cell(o), "new": _cell(n)}
+                                   for col, o, n in zip(columns, old_row, new_row) if o != n)
+                if old_row != new_row:
+                    table["rows"][row_key] = new_row
+                    marks[row_key] = mark
+        elif key == "values":
+            if "values" not in table:
+                raise AmendmentError(f"override.{where}.values: the base table has rows, not a list of values")
+            if table["values"] != value:
+                changes.append({"path": f"{where}.values", "old": list(table["values"]), "new": list(value)})
+                old_set = set(table["values"])
+                table["values"] = list(value)
+                kept = {_value_key(v) for v in value}
+                for stale in [k for k in marks if k not in kept]:
+                    del marks[stale]
+                marks.update({_value_key(v): mark for v in value if v not in old_set})
+        elif key == "row_verification":
+            marks.update(value)
+        elif table.get(key) != value:
+            changes.append({"path": f"{where}.{key}", "old": table.get(key), "new": value})
+            table[key] = value
+    if not marks:
+        table.pop("row_verification", None)
+    values_changed = any(c["path"].startswith(where + ".rows") or c["path"] == where + ".values" for c in changes)
+    if values_changed and "verified_by" not in block and "AMENDED by" not in table["verified_by"]:
+        table["verified_by"] = f"{table['verified_by']} AMENDED by {reference} (changed values marked '{mark}')."
+
+
+def _cell(value: Any) -> Any:
+    return None if value == NO_VALUE else value
 
 
 @functools.lru_cache(maxsize=1)
@@ -240,13 +455,14 @@ def _validator() -> Draft202012Validator:
     return Draft202012Validator(schema)
 
 
-def _validate_schema(path: pathlib.Path, doc: dict) -> None:
+def _validate_schema(path: pathlib.Path, doc: dict, stage: str = "") -> None:
     errors = sorted(_validator().iter_errors(doc), key=lambda e: (e.json_path, e.message))
     if not errors:
         return
     first = errors[0]
     more = f" (and {len(errors) - 1} more problem{'s' if len(errors) > 2 else ''})" if len(errors) > 1 else ""
-    raise RulesetError(f"{path}: {first.json_path}: {_error_text(first)}{more}")
+    when = f" ({stage})" if stage else ""
+    raise RulesetError(f"{path}{when}: {first.json_path}: {_error_text(first)}{more}")
 
 
 def _error_text(error) -> str:
@@ -287,7 +503,7 @@ def _build(path: pathlib.Path, doc: dict, sha256: str) -> Ruleset:
               for cid, c in doc["checks"].items()}
     return Ruleset(id=doc["id"], title=doc["title"], code=doc["code"], edition=doc["edition"],
                    country=doc["country"], cautions=tuple(doc["cautions"]), checks=checks, tables=tables,
-                   path=path, sha256=sha256)
+                   path=path, sha256=sha256, document=doc)
 
 
 def _build_table(name: str, t: dict) -> Table:
