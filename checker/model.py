@@ -154,9 +154,24 @@ class SkippedRow:
 
 
 @dataclass(frozen=True, slots=True)
+class NotRun:
+    """A check that could not run on one motor because the schedule does not carry what it needs.
+
+    Not a finding: a schedule that never shows, say, overload settings is summarised once per
+    check ("could not run on N motors: ...") instead of producing a needs-info on every motor.
+    ``reason`` is shared by all motors it applies to; ``detail`` is this motor's own figure.
+    """
+
+    check: str
+    reason: str
+    detail: str = ""
+
+
+@dataclass(frozen=True, slots=True)
 class MotorReview:
     motor: Motor
     findings: tuple[Finding, ...]
+    not_run: tuple[NotRun, ...] = ()
 
 
 @dataclass(frozen=True, slots=True)

@@ -18,7 +18,8 @@ from checker.ingest.feeders import (FeederRow, FeederTable, feeder_table_info, l
 from checker.ingest.layout import LocatedTable, describe_columns, locate_tables
 from checker.ingest.normalize import frozen_value, normalize_table
 from checker.ingest.readers import Grid, InputError, read_grids
-from checker.model import Motor, MotorReview, Review, SkippedRow
+from checker.model import Motor, MotorReview, NotRun, Review, SkippedRow
+from checker.progress import Progress
 from checker.rules.common import ReviewOptions
 from checker.rules.feeders import review_feeders
 from checker.rules.registry import CHECKS, GROUP_CHECKS, runnable
@@ -231,13 +232,16 @@ def _outside_reason(index: int, tables: list[LocatedTable], cells: list[str],
 
 def _read_grid(grid: Grid, tables: list[LocatedTable], motors: list, skipped: list, notes: list, ruleset: Ruleset,
                options: ReviewOptions, not_run: dict, feeder_tables: list[FeederTable] = (),
-               feeder_rows: list[FeederRow] | None = None, memo: _CheckMemo | None = None) -> None:
+               feeder_rows: list[FeederRow] | None = None, memo: _CheckMemo | None = None,
+               progress: Progress | None = None) -> None:
     memo = memo or _CheckMemo(ruleset, options)
+    progress = progress or Progress(enabled=False)
     covered: set[int] = set()
     rows_skipped: list[tuple[tuple[int, int], SkippedRow]] = []
     feeder_rows = [] if feeder_rows is None else feeder_rows
     for table in tables:
         covered.update(range(table.data_first, table.data_last + 1))
+        progress.stage("reading rows")
         result = normalize_table(table)
         # Heading rows that carry a feeder's conductors or device are feeders, not motors.
         result.motors, heading_feeders = split_heading_feeders(result.motors)
@@ -248,8 +252,17 @@ def _read_grid(grid: Grid, tables: list[LocatedTable], motors: list, skipped: li
             if cid in CHECKS and cid not in active and result.motors:
                 entry = not_run.setdefault(cid, {"check": cid, "reason": CHECKS[cid].missing_reason, "motors": 0})
                 entry["motors"] += len(result.motors)
-        for motor in result.motors:
-            motors.append(MotorReview(motor, memo.run(motor, active)))
+        progress.stage("checking motors")
+        for number, motor in enumerate(result.motors, start=1):
+            results = memo.run(motor, active)
+            skipped_checks = tuple(r for r in results if isinstance(r, NotRun))
+            for item in skipped_checks:
+                entry = not_run.setdefault((item.check, item.reason),
+                                           {"check": item.check, "reason": item.reason, "motors": 0})
+                entry["motors"] += 1
+            findings = tuple(r for r in results if not isinstance(r, NotRun))
+            motors.append(MotorReview(motor, findings, skipped_checks))
+            progress.step(number, len(result.motors))
         for row in result.skipped:
             rows_skipped.append(((row.source.page or 0, row.source.row), row))
         if result.hidden_motor_rows:
@@ -278,6 +291,13 @@ def _duplicate_tag_notes(motors: list[MotorReview]) -> list[str]:
             for tag, where in seen.items() if len(where) > 1]
 
 
+def _rows_text(table: dict) -> str:
+    """'Motors row 3' or 'rows 3-4' for a table's header rows."""
+    first, _, last = str(table["header_rows"]).partition("-")
+    rows = f"row {first}" if first == last or not last else f"rows {first}-{last}"
+    return f"{table['sheet']} {rows}" if table.get("sheet") else rows
+
+
 def _sheet_notes(grids: list[Grid], tables: list[dict]) -> list[str]:
     """Say which read sheets were hidden, when several sheets held a schedule, and what a format cannot show."""
     read = list(dict.fromkeys(t["sheet"] for t in tables if t["status"] == "read" and t.get("sheet") is not None))
@@ -294,18 +314,22 @@ def _sheet_notes(grids: list[Grid], tables: list[dict]) -> list[str]:
 
 
 def review_schedule(path: Path, code: str | None = "cec-2015", sheet: str | None = None,
-                    options: ReviewOptions | None = None, amendments: str | Path | None = None) -> Review:
+                    options: ReviewOptions | None = None, amendments: str | Path | None = None,
+                    progress: Progress | None = None) -> Review:
     """Review one submitted schedule file against one ruleset.
 
     ``code`` names the ruleset (None: the default, or the base of
     ``amendments``); ``amendments`` is a local amendments file extending it.
     Raises InputError (the file cannot be used) or RulesetError (the ruleset
-    is invalid); both carry a one-line message for the reviewer.
+    is invalid); both carry a one-line message for the reviewer. ``progress``
+    hears of each stage (see ``checker.progress``).
     """
     options = options or ReviewOptions()
+    progress = progress or Progress(enabled=False)
     ruleset = select_ruleset(code, amendments)
     _check_registry(ruleset)
     path = Path(path)
+    progress.stage(f"reading {path.name}")
     grids = read_grids(path, sheet)
     motors: list[MotorReview] = []
     skipped: list[SkippedRow] = []
@@ -315,6 +339,7 @@ def review_schedule(path: Path, code: str | None = "cec-2015", sheet: str | None
     feeder_rows: list[FeederRow] = []
     memo = _CheckMemo(ruleset, options)
     for grid in grids:
+        progress.stage("finding the schedule")
         located = locate_tables(grid)
         feeder_tables = locate_feeder_tables(grid, located)
         located = trim_motor_tables(located, feeder_tables)
@@ -324,20 +349,21 @@ def review_schedule(path: Path, code: str | None = "cec-2015", sheet: str | None
             continue
         tables.extend(_table_info(t) for t in located)
         tables.extend(feeder_table_info(t) for t in feeder_tables)
-        _read_grid(grid, located, motors, skipped, notes, ruleset, options, not_run, feeder_tables, feeder_rows, memo)
+        _read_grid(grid, located, motors, skipped, notes, ruleset, options, not_run, feeder_tables, feeder_rows, memo,
+                   progress)
     if not motors and not any(t["status"] == "read" for t in tables):
         seen = ", ".join(repr(g.sheet) if g.sheet else f"p. {g.row_pages[0]} table {g.table}"
                          for g in grids if g.sheet or g.row_pages) or "the file"
         raise InputError(f"no motor schedule found in {path.name} (looked at {seen}); expected a header row with a "
                          f"tag column and hp, kW, volts or FLA columns")
     if not motors and not feeder_rows:
-        where = ", ".join(f"{t['sheet']} rows {t['header_rows']}" if t.get("sheet") else f"rows {t['header_rows']}"
-                          for t in tables if t["status"] == "read" and t.get("header_rows"))
+        where = ", ".join(_rows_text(t) for t in tables if t["status"] == "read" and t.get("header_rows"))
         raise InputError(f"{path.name}: a motor schedule header was found ({where or 'see the file'}) but no motor "
                          f"rows under it; nothing to review - check that the schedule's rows were saved in this file")
     notes[:0] = _sheet_notes(grids, tables)
     notes.extend(_duplicate_tag_notes(motors))
     # Group checks run after every motor is read: a feeder table may come on a later sheet.
+    progress.stage("checking feeders")
     feeders = review_feeders([m.motor for m in motors], feeder_rows, ruleset, options, GROUP_CHECKS)
     digest = hashlib.sha256(path.read_bytes()).hexdigest()
     input_info = {"file": path.name, "sha256": digest, "format": grids[0].kind if grids else "",

@@ -6,7 +6,7 @@ to decide what the ruleset should say.
 import pytest
 
 from checker.ingest import values
-from checker.model import Motor, SourceRef, Status
+from checker.model import Motor, NotRun, SourceRef, Status
 from checker.review import review_schedule
 from checker.rules.bonding import check_bonding, smallest_size_covering
 from checker.rules.common import ReviewOptions
@@ -157,7 +157,7 @@ def test_cec_device_rating_does_not_change_the_bond():
 
 def test_missing_bond_names_the_minimum():
     f = one(check_bonding(motor(fla_a=27, conductor=cond("8", insulation="TECK90")), CEC, LENIENT))
-    assert f.status is Status.NEEDS_INFO and "#10 Cu" in f.message and "cable" in f.message
+    assert isinstance(f, NotRun) and "#10 Cu" in f.detail and "cable" in f.reason
 
 
 def test_bond_material_defaults_to_the_phase_material_with_a_note():

@@ -6,7 +6,7 @@ ruleset value fails a test. Sources are named beside each case.
 import pytest
 
 from checker.ingest import values
-from checker.model import Motor, SourceRef, Status
+from checker.model import Motor, NotRun, SourceRef, Status
 from checker.review import review_schedule
 from checker.rules.common import ReviewOptions
 from checker.rules.overload import check_overload
@@ -122,9 +122,12 @@ def test_cec_unknown_service_factor_is_decided_only_when_both_readings_agree(set
     assert len([t for t in f.trail if "maximum" in t]) == 2  # both readings shown
 
 
-def test_cec_strict_review_needs_the_service_factor():
-    f = one(check_overload(motor(fla_a=32, overload_setting=ol(setting_a=30.0)), CEC, STRICT))
-    assert f.status is Status.NEEDS_INFO and "service factor" in f.message
+@pytest.mark.parametrize("setting_a, status", [(30.0, Status.PASS), (38.0, Status.NEEDS_INFO), (41.0, Status.FAIL)])
+def test_strict_review_assumes_no_service_factor_either(setting_a, status):
+    f = one(check_overload(motor(fla_a=32, overload_setting=ol(setting_a=setting_a)), CEC, STRICT))
+    assert f.status is status
+    if status is Status.NEEDS_INFO:
+        assert "marking" in f.message
 
 
 def test_cec_has_no_temperature_rise_path_and_no_relief():
@@ -145,15 +148,15 @@ def test_overloads_use_nameplate_not_table_current():
     ("BY VFD", "drive"),
     ("by soft starter", "soft starter"),
 ])
-def test_no_setting_is_needs_info_with_the_maximum(text, words):
+def test_no_setting_means_the_check_could_not_run_with_the_maximum(text, words):
     f = one(check_overload(motor(fla_a=20, service_factor=1.15, overload_setting=setting(text)), CEC, LENIENT))
-    assert f.status is Status.NEEDS_INFO and words in f.message
-    assert f.limit == pytest.approx(25.0) and "25.0 A" in f.message
+    assert isinstance(f, NotRun) and words in f.reason
+    assert "25.0 A" in f.detail  # 20 A x 125 % (service factor 1.15)
 
 
-def test_integral_thermal_protector_is_needs_info():
+def test_integral_thermal_protector_is_listed_as_not_run():
     f = one(check_overload(motor(fla_a=6.4, overload_setting=setting("INTEGRAL")), CEC, LENIENT))
-    assert f.status is Status.NEEDS_INFO and "thermally protected" in f.message
+    assert isinstance(f, NotRun) and "integral" in f.reason
 
 
 def test_percent_setting_is_applied_to_nameplate():
@@ -193,7 +196,7 @@ def test_non_continuous_duty_is_left_to_the_reviewer():
 
 def test_no_overload_setting_read():
     f = one(check_overload(motor(fla_a=10, service_factor=1.15), CEC, LENIENT))
-    assert f.status is Status.NEEDS_INFO and f.limit == pytest.approx(12.5)
+    assert isinstance(f, NotRun) and "12.5 A" in f.detail  # 10 A x 125 %
 
 
 # ---- NEC 2023, 430.32 -----------------------------------------------------------------------------------------
@@ -265,8 +268,17 @@ def test_schedule_overload_and_service_factor_columns_are_read(tmp_path):
         ["P-3", "25", "575/3/60", "27", "1.15", "CL 10"],
     ])
     review = review_schedule(path)
-    got = {m.motor.tag: next(f for f in m.findings if f.check == "overload") for m in review.motors}
+    got = {m.motor.tag: next((f for f in m.findings if f.check == "overload"), None) for m in review.motors}
     assert got["P-1"].status is Status.PASS       # 27 A x 125 % = 33.75 A
     assert got["P-2"].status is Status.FAIL       # 27 A x 115 % = 31.05 A
-    assert got["P-3"].status is Status.NEEDS_INFO
+    assert got["P-3"] is None                     # class only: the check could not run ...
+    assert [n.check for n in review.motors[2].not_run] == ["overload"]  # ... and says so
     assert review.motors[1].motor.record["overload_setting"]["trip_class"] == 20
+
+
+def test_unstated_duty_is_assumed_continuous_or_asked_in_strict_review():
+    record = {"tag": "M-1", "fla_a": 20, "service_factor": 1.15, "overload_setting": ol(setting_a=24.0)}
+    m = Motor(tag="M-1", record=record, source=SourceRef("t.csv", 5))
+    f = one(check_overload(m, CEC, LENIENT))
+    assert f.status is Status.PASS and any("continuous" in a for a in f.assumptions)
+    assert one(check_overload(m, CEC, STRICT)).status is Status.NEEDS_INFO

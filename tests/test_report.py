@@ -297,7 +297,7 @@ def test_summary_text_lines(report):
     assert lines == [
         "schedule.xlsx  cec-2015 (CEC Part I Section 28 (test))",
         "result: FAIL | 3 rows read: 2 motors, 1 not reviewed | motors: 1 fail, 1 needs info, 0 pass",
-        "checks not run: bond-size (2 motors)",
+        "checks that could not run: bond-size (2 motors)",
         "Motors!row 5  P-101  FAIL  28-200  Breaker is above the maximum.",
         f"Motors!row 6  {SCRIPT}  NEEDS-INFO  input  HP cell could not be read: {ATTR}",
     ]

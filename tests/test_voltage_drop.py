@@ -235,3 +235,11 @@ def test_length_column_end_to_end(tmp_path):
     got = {m.motor.tag: [f for f in m.findings if f.check == "voltage-drop"] for m in review.motors}
     assert got["P-1"][0].status is Status.PASS and got["P-2"][0].status is Status.FAIL and got["P-3"] == []
     assert review.motors[0].motor.record["length_m"] == pytest.approx(99.97, abs=0.01)
+
+
+def test_packaged_equipment_uses_its_mca_as_the_current():
+    # NEC has no device fallback; the marked MCA (28.5 A) bounds the running current: sqrt(3) x 28.5 x 1.24 x 0.08
+    m = motor(mca_a=28.5, voltage_v=575, phase=3, conductor=cond("10"), length_m=24.384)
+    f = one(check_voltage_drop(m, NEC, LENIENT))
+    assert f.status is Status.PASS and any("minimum circuit ampacity" in a for a in f.assumptions)
+    assert f.provided == pytest.approx(math.sqrt(3) * 28.5 * 1.24 * 0.08 / 575 * 100, rel=1e-3)

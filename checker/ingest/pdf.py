@@ -8,12 +8,15 @@ tables whose header names no motor fields are listed as passed over.
 
 How a file is read
 ------------------
-1. **Cheap pass over every page.** The characters of each page are grouped
-   into lines, and the page is a candidate when three neighbouring lines
-   name a tag column and two motor columns (the synonyms of ``headers.py``).
-   Only candidate pages, and the page after a schedule (which may continue
-   it), are parsed in depth, so a 50-page set costs little more than
-   extracting its text.
+1. **Cheap passes.** pdfium (installed with pdfplumber) extracts every
+   page's text in a few milliseconds; a page that does not name two motor
+   columns (hp, kW, FLA, volts, MCA, MOCP) is not opened with pdfplumber at
+   all. On the remaining pages the characters are grouped into lines, and a
+   page is parsed in depth when three neighbouring lines name a tag column
+   and two motor columns (the synonyms of ``headers.py``). The page after a
+   schedule is parsed too (the table may go on). When nothing is found, the
+   first ``FALLBACK_PAGES`` pages are parsed in depth anyway, so a schedule
+   the cheap tests missed is still read.
 2. **Ruled tables.** pdfplumber finds cells from the drawn lines. Cells
    larger than ``GIANT_CELL_SHARE`` of the page (the drawing border, a
    viewport) are dropped first, so a title block that shares the border's
@@ -41,7 +44,9 @@ line's) becomes a Unicode superscript, so ``60`` with a footnote ``2`` reads
 ``60²`` and the value parser reports the footnote instead of reading 602.
 Vertical text (header cells written bottom to top, or top to bottom) is
 read along its direction. Pages stored with ``/Rotate`` are read as a viewer
-shows them (pdfplumber applies the rotation).
+shows them (pdfplumber applies the rotation); a schedule drawn sideways on a
+page that is not stored rotated is read turned a quarter (``_Turn``), and
+its tables are then numbered in that turned frame.
 
 Provenance
 ----------
@@ -59,6 +64,7 @@ from __future__ import annotations
 
 import bisect
 import io
+import itertools
 import logging
 import statistics
 import sys
@@ -67,7 +73,14 @@ from collections.abc import Callable
 from dataclasses import dataclass, field
 
 from checker.ingest import headers as H
-from checker.ingest.layout import MIN_SCORE, STRONG_SCORE, is_value_like, locate_tables, match_header, normalise_header
+from checker.ingest.layout import (
+    MIN_SCORE,
+    STRONG_SCORE,
+    is_value_like,
+    locate_tables,
+    match_header,
+    normalise_header,
+)
 from checker.ingest.readers import Grid, InputError
 
 __all__ = ["read_pdf_grids"]
@@ -83,6 +96,8 @@ HEADER_LINE_GAP_EM = 0.8     # lines of one header block are at most this far ap
 WRAP_GAP_EM = 0.6            # a wrapped continuation line is at most this far below the line above
 BODY_GAP_EM = 3.0            # an unruled table ends at a vertical gap wider than this ...
 BODY_GAP_FACTOR = 2.5        # ... or this many times its usual gap between lines
+DUPLICATE_PT = 0.8           # the same character drawn again this close is one character (fake bold)
+SIDEWAYS_SHARE = 0.6         # a page whose characters mostly read up (or down) is read turned
 ALIGN_PT = 4.0               # column rules of a continued table line up within this distance
 CID_SHARE = 0.5              # pages whose characters are mostly '(cid:N)' have no usable text
 PROGRESS_MIN_PAGES = 10      # progress on stderr (a terminal only) for files with at least this many pages
@@ -151,18 +166,72 @@ class _Line:
 
 
 def _chars(page) -> list[_Ch]:
+    """The page's visible characters; a character drawn again within ``DUPLICATE_PT`` of itself
+    (CAD programs fake bold lettering that way) is kept once, so 'TAG' does not read 'TTAAGG'."""
     out = []
+    kept: dict[tuple[str, int], list[tuple[float, float]]] = {}
     for c in page.chars:
         text = c.get("text") or ""
         if not text.strip():
             continue
         upright = bool(c.get("upright", True))
         x0, x1, top, bottom = float(c["x0"]), float(c["x1"]), float(c["top"]), float(c["bottom"])
+        # a duplicate overlaps its twin by more than half its width ('ll' in small type does not)
+        near = min(DUPLICATE_PT, 0.5 * (x1 - x0))
+        row = int(top // (2 * DUPLICATE_PT))
+        if any(abs(x0 - kx) <= near and abs(top - kt) <= DUPLICATE_PT
+               for r in (row - 1, row, row + 1) for kx, kt in kept.get((text, r), ())):
+            continue
+        kept.setdefault((text, row), []).append((x0, top))
         # pdfplumber's 'size' is the glyph box height; for rotated text the font size is its width
         size = (bottom - top) if upright else (x1 - x0)
         matrix = c.get("matrix") or (1, 0, 0, 1, 0, 0)
         out.append(_Ch(text, x0, x1, top, bottom, max(size, 0.1), upright, matrix[1] > 0))
     return out
+
+
+@dataclass(frozen=True)
+class _Turn:
+    """A quarter turn of the page that makes sideways text upright.
+
+    Schedules are sometimes drawn sideways on a sheet that is not stored
+    rotated (no ``/Rotate``): most of the page's text then reads bottom to
+    top (``kind='up'``) or top to bottom (``'down'``). Characters, cells and
+    rules are all turned into the frame in which that text reads left to
+    right; ``kind=None`` leaves the page as it is.
+    """
+
+    kind: str | None
+    width: float
+    height: float
+
+    def box(self, x0: float, top: float, x1: float, bottom: float) -> tuple[float, float, float, float]:
+        if self.kind == "up":
+            return self.height - bottom, x0, self.height - top, x1
+        if self.kind == "down":
+            return top, self.width - x1, bottom, self.width - x0
+        return x0, top, x1, bottom
+
+    def char(self, ch: _Ch) -> _Ch:
+        if self.kind is None:
+            return ch
+        x0, top, x1, bottom = self.box(ch.x0, ch.top, ch.x1, ch.bottom)
+        # the turned text becomes upright; upright text becomes vertical (reading down after an
+        # 'up' turn, up after a 'down' turn)
+        reads_with = (not ch.upright) and ch.upward == (self.kind == "up")
+        upward = self.kind != "up"
+        return _Ch(ch.text, x0, x1, top, bottom, ch.size, reads_with, upward if not reads_with else False)
+
+
+def _turn_for(chars: list[_Ch], width: float, height: float) -> _Turn:
+    """The quarter turn under which most of the page's characters read upright (usually none)."""
+    up = sum(1 for c in chars if not c.upright and c.upward)
+    down = sum(1 for c in chars if not c.upright and not c.upward)
+    if up > SIDEWAYS_SHARE * len(chars):
+        return _Turn("up", width, height)
+    if down > SIDEWAYS_SHARE * len(chars):
+        return _Turn("down", width, height)
+    return _Turn(None, width, height)
 
 
 def _build_lines(chars: list[_Ch]) -> list[_Line]:
@@ -231,12 +300,15 @@ def _vertical_lines(chars: list[_Ch]) -> list[_Line]:
     right to left). Each returned line's words hold the text in reading order.
     """
     columns: list[list[_Ch]] = []
-    for ch in sorted(chars, key=lambda c: c.cx):
-        if columns and abs(ch.cx - statistics.mean(c.cx for c in columns[-1])) <= 0.5 * ch.size \
-                and columns[-1][0].upward == ch.upward:
+    centre_sum = 0.0
+    for ch in sorted(chars, key=lambda c: (c.upward, c.cx)):
+        if columns and columns[-1][0].upward == ch.upward \
+                and abs(ch.cx - centre_sum / len(columns[-1])) <= 0.5 * ch.size:
             columns[-1].append(ch)
+            centre_sum += ch.cx
         else:
             columns.append([ch])
+            centre_sum = ch.cx
     lines = []
     for group in columns:
         upward = group[0].upward
@@ -254,8 +326,8 @@ def _vertical_lines(chars: list[_Ch]) -> list[_Line]:
         top, bottom = min(c.top for c in group), max(c.bottom for c in group)
         lines.append(_Line([_Word(text, x0, x1, top, bottom, size)], top, bottom, size))
     downward = [ln for ln, g in zip(lines, columns) if not g[0].upward]
-    upward_lines = [ln for ln, g in zip(lines, columns) if g[0].upward]
-    return upward_lines + list(reversed(downward))
+    upward_lines = sorted((ln for ln, g in zip(lines, columns) if g[0].upward), key=lambda ln: ln.x0)
+    return upward_lines + sorted(downward, key=lambda ln: -ln.x0)
 
 
 def _join_lines(texts: list[str]) -> str:
@@ -332,7 +404,7 @@ def _strong_fields(texts: list[str]) -> set[str]:
 def _line_fields(line: _Line) -> set[str]:
     """Fields named strongly by a line's phrases, words and word pairs (the cheap test)."""
     words = [w.text for w in line.words if not is_value_like(w.text)]
-    texts = words + [f"{a} {b}" for a, b in zip(words, words[1:])] + [p.text for p in _phrases(line)]
+    texts = words + [f"{a} {b}" for a, b in itertools.pairwise(words)] + [p.text for p in _phrases(line)]
     return _strong_fields(texts)
 
 
@@ -421,14 +493,14 @@ class _Ruled:
         return (x1 - x0) * (b - t)
 
 
-def _ruled_structures(page) -> list[_Ruled]:
+def _ruled_structures(page, turn: _Turn) -> list[_Ruled]:
     from pdfplumber.table import TableFinder, cells_to_tables
 
     finder = TableFinder(page, {"vertical_strategy": "lines", "horizontal_strategy": "lines",
                                 "snap_tolerance": SNAP_PT, "join_tolerance": SNAP_PT,
                                 "intersection_tolerance": SNAP_PT})
     page_area = float(page.width) * float(page.height)
-    cells = [c for c in finder.cells if (c[2] - c[0]) * (c[3] - c[1]) < GIANT_CELL_SHARE * page_area]
+    cells = [turn.box(*c) for c in finder.cells if (c[2] - c[0]) * (c[3] - c[1]) < GIANT_CELL_SHARE * page_area]
     out = []
     for group in cells_to_tables(cells):
         xs = _cluster([v for c in group for v in (c[0], c[2])])
@@ -529,19 +601,25 @@ def _band_lines(cell_lines: dict[int, list[_Line]]) -> list[_RowLine]:
 
 
 def _ruled_table(s: _Ruled, page_no: int) -> _PageTable:
-    """Grid rows of one ruled structure; bands holding several rows are split at row starts."""
+    """Grid rows of one ruled structure; bands holding several rows are split at row starts.
+
+    A cell spanning columns or bands is a merged range (its text in its top-left cell); cells of a
+    band that was split into rows are not merged, each line went to its own row.
+    """
     n_cols = len(s.xs) - 1
+    by_band: dict[int, list[int]] = {}
+    for cid, (r0, _, _, _) in enumerate(s.cells):
+        by_band.setdefault(r0, []).append(cid)
     rows: list[list[str]] = []
     band_rows: list[tuple[int, int]] = []       # grid rows [first, last] of each band
-    multi_band: list[int] = []
+    split: set[int] = set()
     for band in range(len(s.ys) - 1):
         first = len(rows)
-        starting = [cid for cid, (r0, _, _, _) in enumerate(s.cells) if r0 == band]
-        single = [cid for cid in starting if s.cells[cid][2] == band + 1]
-        multi_band += [cid for cid in starting if s.cells[cid][2] > band + 1]
+        single = [cid for cid in by_band.get(band, ()) if s.cells[cid][2] == band + 1]
         lines = {cid: _cell_lines(s.chars.get(cid, [])) for cid in single}
         band_lines = _band_lines({s.cells[cid][1]: lines[cid] for cid in single if lines[cid]})
         if _several_rows(band_lines):
+            split.add(band)
             for row in _merge_lines(band_lines, first_column_wraps=True):
                 cells = [""] * n_cols
                 for col, parts in row.items():
@@ -550,7 +628,7 @@ def _ruled_table(s: _Ruled, page_no: int) -> _PageTable:
         else:
             cells = [""] * n_cols
             for cid in single:
-                cells[s.cells[cid][1]] = _region_text(s.chars.get(cid, []))
+                cells[s.cells[cid][1]] = _join_lines([ln.text for ln in lines[cid]])
             rows.append(cells)
         if len(rows) == first:
             rows.append([""] * n_cols)
@@ -558,8 +636,10 @@ def _ruled_table(s: _Ruled, page_no: int) -> _PageTable:
     merged = []
     for cid, (r0, c0, r1, c1) in enumerate(s.cells):
         top, bottom = band_rows[r0][0], band_rows[r1 - 1][1]
-        if cid in multi_band:
+        if r1 > r0 + 1:
             rows[top][c0] = _region_text(s.chars.get(cid, []))
+        elif r0 in split:
+            continue
         if (bottom, c1 - 1) != (top, c0):
             merged.append((top, c0, bottom, c1 - 1))
     return _PageTable(page_no, "ruled", s.bbox, list(s.xs), rows, merged)
@@ -660,7 +740,7 @@ def _boundaries(cols: list[_Col], body: list[list[_Phrase]], lo: float, hi: floa
     words = [(w.x0, w.x1) for phrases in body for p in phrases for w in p.words]
     phrases = [(p.x0, p.x1) for ps in body for p in ps]
     bounds = [lo]
-    for a, b in zip(cols, cols[1:]):
+    for a, b in itertools.pairwise(cols):
         g0, g1 = a.x1, b.x0
         if g1 <= g0:
             bounds.append((g0 + g1) / 2)
@@ -814,15 +894,19 @@ def _aligned(a: list[float], b: list[float]) -> bool:
 
 
 def _continuation(prev: _PageTable, ruled: list[_PageTable], free_lines: list[_Line], page_no: int,
-                  name: str) -> tuple[_PageTable | None, set[int]]:
-    """The table on this page that continues ``prev`` without a header of its own, if any."""
+                  name: str) -> _PageTable | None:
+    """The table on this page that continues ``prev`` without a header of its own, if any.
+
+    Ruled: the topmost ruled table with no motor header whose column rules line up with
+    ``prev``'s. Unruled: from the first free line whose phrases sit in ``prev``'s columns, the
+    lines below it, cut into ``prev``'s columns.
+    """
     if prev.kind == "ruled":
         for table in sorted(ruled, key=lambda t: t.bbox[1]):
             if _aligned(prev.bounds, table.bounds) and not locate_tables(table.grid(name)):
-                return table, set()
-        return None, set()
-    shift = 0.0
-    lo, hi = prev.bounds[0] + shift, prev.bounds[-1]
+                return table
+        return None
+    lo, hi = prev.bounds[0], prev.bounds[-1]
     for i, line in enumerate(free_lines):
         phrases = _phrases(line, lo, hi)
         if len(phrases) < 3 or _header_candidate(line):
@@ -834,8 +918,8 @@ def _continuation(prev: _PageTable, ruled: list[_PageTable], free_lines: list[_L
         body = [_phrases(free_lines[k], lo, hi) for k in body_idx]
         rows = _body_rows([free_lines[k] for k in body_idx], body, prev.bounds)
         bbox = (prev.bounds[0], free_lines[body_idx[0]].top, prev.bounds[-1], free_lines[body_idx[-1]].bottom)
-        return _PageTable(page_no, "unruled", bbox, list(prev.bounds), rows), set(body_idx)
-    return None, set()
+        return _PageTable(page_no, "unruled", bbox, list(prev.bounds), rows)
+    return None
 
 
 # --------------------------------------------------------------------------- grids
@@ -870,19 +954,26 @@ class _PageScan:
     usable: bool = True
 
 
-def _page_tables(page, page_no: int, chars: list[_Ch], open_part: _PageTable | None,
+def _page_tables(page, page_no: int, chars: list[_Ch], turn: _Turn, open_part: _PageTable | None,
                  name: str) -> tuple[list[_PageTable], _PageTable | None]:
-    """All tables of one page, numbered; and the part that continues ``open_part`` (if any)."""
-    structures = _ruled_structures(page)
+    """All tables of one page, numbered; and the part that continues ``open_part`` (if any).
+
+    ``chars`` are already turned by ``turn`` (see ``_Turn``); cells and rules are turned here.
+    """
+    structures = _ruled_structures(page, turn)
     free = _assign_chars(chars, structures)
     ruled = [t for t in (_ruled_table(s, page_no) for s in structures) if any(any(r) for r in t.rows)]
     free_lines = _build_lines([c for c in free if c.upright])
-    rules = [(float(e["top"]), float(e["x0"]), float(e["x1"])) for e in page.edges if e.get("orientation") == "h"]
+    rules = []
+    for e in page.edges:
+        x0, top, x1, bottom = turn.box(float(e["x0"]), float(e["top"]), float(e["x1"]), float(e["bottom"]))
+        if x1 - x0 > bottom - top:
+            rules.append((top, x0, x1))
     unruled, used = _unruled_tables(free_lines, rules, page_no)
     continued = None
     if open_part is not None:
         remaining = [ln for k, ln in enumerate(free_lines) if k not in used]
-        continued, _ = _continuation(open_part, ruled, remaining, page_no, name)
+        continued = _continuation(open_part, ruled, remaining, page_no, name)
         if continued is not None and continued.kind == "unruled":
             unruled.append(continued)
     tables = ruled + unruled
@@ -1045,15 +1136,19 @@ def _read(pages, data: bytes, name: str, progress) -> list[Grid]:
     grids = [_chain_grid(chain, name) for chain in chains]
     if any(locate_tables(g) for g in grids):
         return grids
-    # No schedule: look deeper at the first pages so the message can say which tables were seen.
+    # No schedule found: parse the first pages in depth whatever the cheap tests said. A schedule the
+    # tests missed (text pdfium reads differently, say) is still found; otherwise the message can
+    # say which tables were seen.
     extra = [k for k in range(1, len(pages) + 1) if k not in deep and scans[k - 1].usable][:FALLBACK_PAGES]
+    open_chain = None
     for k in extra:
         page = pages[k - 1]
-        tables, _ = _page_tables(page, k, _page_objects(page, k, name), None, name)
-        chains += [[t] for t in tables]
+        open_chain = _scan_page(page, k, _page_objects(page, k, name), name, open_chain, chains, deep, force=True)
         page.close()
-    looked = deep | set(extra)
-    partial = any(s.usable and s.number not in looked for s in scans)
+    grids = [_chain_grid(chain, name) for chain in chains]
+    if any(locate_tables(g) for g in grids):
+        return grids
+    partial = any(s.usable and s.number not in deep for s in scans)
     raise InputError(_no_schedule_message(name, chains, scans, partial))
 
 
@@ -1103,18 +1198,24 @@ def _usable(chars: list[_Ch]) -> bool:
     return cid < CID_SHARE * len(chars)
 
 
-def _scan_page(page, k: int, chars: list[_Ch], name: str, open_chain, chains, deep) -> list[_PageTable] | None:
-    """Cheap test, and the deep parse of schedule pages (and of the page after one)."""
+def _scan_page(page, k: int, chars: list[_Ch], name: str, open_chain, chains, deep,
+               force: bool = False) -> list[_PageTable] | None:
+    """Cheap test, and the deep parse of schedule pages (and of the page after one).
+
+    New tables go to ``chains``; returns the chain a table on the next page may continue (the
+    lowest motor schedule on this page), or None.
+    """
     if not chars:
         return None
+    turn = _turn_for(chars, float(page.width), float(page.height))
+    chars = [turn.char(c) for c in chars]
     upright = [c for c in chars if c.upright]
-    lines = _build_lines(upright)
-    vertical = _vertical_lines([c for c in chars if not c.upright])
-    candidate = _looks_like_schedule(lines, vertical)
+    candidate = force or _looks_like_schedule(_build_lines(upright),
+                                              _vertical_lines([c for c in chars if not c.upright]))
     if not candidate and open_chain is None:
         return None
     deep.add(k)
-    tables, continued = _page_tables(page, k, chars, open_chain[-1] if open_chain else None, name)
+    tables, continued = _page_tables(page, k, chars, turn, open_chain[-1] if open_chain else None, name)
     if continued is not None:
         open_chain.append(continued)
     motor_bottoms = []

@@ -196,6 +196,8 @@ def motor_dict(motor_review: model.MotorReview,
         "record": plain(motor.record),
         "raw": plain(motor.raw),
         "findings": findings,
+        "not_run": [{"check": item.check, "reason": item.reason, "detail": item.detail}
+                    for item in motor_review.not_run],
     }
 
 

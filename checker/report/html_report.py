@@ -17,6 +17,8 @@ from typing import Any
 
 from jinja2 import Environment, FileSystemLoader, StrictUndefined
 
+from checker.report.html_motors import motors_html
+
 TEMPLATES_DIR = Path(__file__).resolve().parent / "templates"
 TEMPLATE_NAME = "review.html.j2"
 
@@ -128,6 +130,8 @@ def _context(report: dict[str, Any]) -> dict[str, Any]:
     columns, rows = table_grid(_list(report.get("tables")))
     by_status = _mapping(summary.get("motors_by_status"))
     filter_counts = {"all": len(motors), **{key: by_status.get(key, 0) for key in STATUS_LABELS}}
+    appendix_ids = {str(entry.get("id")) for entry in checks}
+    motors_part, findings_part = motors_html(motors, appendix_ids)
     return {
         "report": report,
         "tool": _mapping(report.get("tool")),
@@ -139,10 +143,12 @@ def _context(report: dict[str, Any]) -> dict[str, Any]:
         "cautions": _list(report.get("cautions")),
         "notes": _list(report.get("notes")),
         "motors": motors,
+        "motors_html": motors_part,
+        "findings_html": findings_part,
         "skipped": _list(report.get("skipped")),
         "feeders": [entry for entry in _list(report.get("feeders")) if isinstance(entry, dict)],
         "checks": checks,
-        "appendix_ids": {str(entry.get("id")) for entry in checks},
+        "appendix_ids": appendix_ids,
         "verification": verification_pairs(ruleset),
         "table_columns": columns,
         "table_rows": rows,

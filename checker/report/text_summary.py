@@ -3,6 +3,8 @@ from __future__ import annotations
 
 import re
 import unicodedata
+from collections.abc import Iterator
+from itertools import chain, islice
 from typing import Any
 
 LINE_WIDTH = 120
@@ -30,17 +32,25 @@ def clip(line: str, width: int = LINE_WIDTH) -> str:
 
 def finding_lines(report: dict[str, Any]) -> list[str]:
     """One line per fail or needs-info finding, failures first, each group in report order."""
-    lines = []
+    return list(_finding_lines(report))
+
+
+def _finding_lines(report: dict[str, Any]) -> Iterator[str]:
     for status in LISTED_STATUSES:
         for motor in report.get("motors", []):
+            findings = [f for f in motor.get("findings", []) if f.get("status") == status]
+            if not findings:
+                continue
             location = clean((motor.get("source") or {}).get("label", ""))
             tag = clean(motor.get("tag", ""))
-            for finding in motor.get("findings", []):
-                if finding.get("status") != status:
-                    continue
+            for finding in findings:
                 parts = (location, tag, STATUS_WORDS[status], clean(finding.get("rule", "")), clean(finding.get("message", "")))
-                lines.append(clip("  ".join(parts)))
-    return lines
+                yield clip("  ".join(parts))
+
+
+def _listed_count(items: list[Any], statuses: tuple[str, ...]) -> int:
+    """How many lines the findings of ``items`` (motors or feeders) with these statuses give."""
+    return sum(1 for item in items for f in item.get("findings", []) if f.get("status") in statuses)
 
 
 def feeder_lines(report: dict[str, Any], statuses: tuple[str, ...] = LISTED_STATUSES) -> list[str]:
@@ -88,8 +98,11 @@ def head_lines(report: dict[str, Any]) -> list[str]:
         lines.append(clip(line))
     not_run = summary.get("checks_not_run") or []
     if not_run:
-        listed = ", ".join(f"{clean(entry.get('check', ''))} ({entry.get('motors', 0)} motors)" for entry in not_run)
-        lines.append(clip(f"checks not run: {listed}"))
+        per_check: dict[str, int] = {}
+        for entry in not_run:  # one check may be summarised under several reasons
+            per_check[entry.get("check", "")] = per_check.get(entry.get("check", ""), 0) + entry.get("motors", 0)
+        listed = ", ".join(f"{clean(check)} ({motors} motors)" for check, motors in per_check.items())
+        lines.append(clip(f"checks that could not run: {listed}"))
     return lines
 
 
@@ -103,10 +116,14 @@ def summary_text(report: dict[str, Any], max_lines: int = 40) -> str:
     report)`` when lines were left out.
     """
     head = head_lines(report)
-    # Feeder failures come first: one feeder can affect every motor on it.
-    body = feeder_lines(report, ("fail",)) + finding_lines(report) + feeder_lines(report, ("needs-info",))
+    # Feeder failures come first: one feeder can affect every motor on it. Only the lines shown
+    # are written (a large plant has tens of thousands); the rest are only counted.
+    total = (_listed_count(report.get("motors", []), LISTED_STATUSES)
+             + _listed_count(report.get("feeders", []), LISTED_STATUSES))
     room = max(max_lines - len(head), 0)
-    if len(body) > room:
-        shown = max(room - 1, 0)
-        body = body[:shown] + [f"... {len(body) - shown} more (see report)"]
+    shown = total if total <= room else max(room - 1, 0)
+    lines = chain(feeder_lines(report, ("fail",)), _finding_lines(report), feeder_lines(report, ("needs-info",)))
+    body = list(islice(lines, shown))
+    if total > room:
+        body.append(f"... {total - shown} more (see report)")
     return "\n".join(head + body) + "\n"

@@ -16,7 +16,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from checker.model import Finding, Motor, Status
+from checker.model import Finding, Motor, NotRun, Status
 from checker.rules.common import MATERIAL_NAMES, ReviewOptions, num, size_label
 from checker.rules.conductors import check_conductor_ampacity, conductor_ampacity_a, work_out
 from checker.rules.ruleset import Ruleset, Table
@@ -150,6 +150,7 @@ class Requirement:
     cmil: float
     trail: tuple[str, ...] = ()
     assumption: str | None = None
+    condition: str | None = None  # the same, short, for a message
 
 
 def check_bonding(motor: Motor, ruleset: Ruleset, options: ReviewOptions) -> list[Finding]:
@@ -194,7 +195,7 @@ def check_bonding(motor: Motor, ruleset: Ruleset, options: ReviewOptions) -> lis
     return [_verdict(finding, conductor, area, material, readings, trail, assumptions, options)]
 
 
-def _verdict(finding, conductor, area, material, readings, trail, assumptions, options) -> Finding:
+def _verdict(finding, conductor, area, material, readings, trail, assumptions, options) -> Finding | NotRun:
     """Compare the bond with every reading of the requirement (readings[0] is the one favourable to the
     submission); a lenient review passes when it passes, stating what that reading assumes."""
     first = readings[0]
@@ -205,11 +206,12 @@ def _verdict(finding, conductor, area, material, readings, trail, assumptions, o
     kw = {"limit": first.cmil, "trail": tuple(trail), "assumptions": tuple(assumptions)}
     if not bond:
         cable = any(w in (conductor.get("insulation") or "").upper() for w in _CABLE_WORDS)
-        where = " The cable's own bonding conductor is not written;" if cable else ""
         alt = [r for r in readings[1:] if r.size != first.size]
-        more = f" ({_label(alt[0].size, material)} {alt[0].assumption})" if alt and alt[0].assumption else ""
-        return finding(Status.NEEDS_INFO, f"No bonding conductor is shown.{where} it must be at least "
-                       f"{_label(first.size, material)}{more}.".replace(". it", ". It"), **kw)
+        more = f" ({first.condition}; otherwise {_label(alt[0].size, material)})" if alt and first.condition else ""
+        # A cable's own bond or a metal raceway may serve, so an unstated bond is not itself a deficiency.
+        reason = ("the cable's own bonding conductor is not written on the schedule" if cable
+                  else "no bonding conductor shown on the schedule")
+        return NotRun(CHECK_ID, reason, f"bond must be at least {_label(first.size, material)}{more}")
     bond_cmil = area_cmil(area, bond)
     if bond_cmil is None:
         return finding(Status.NEEDS_INFO, f"Bond size {size_label(bond)} is not in {area.citation}; confirm it.", **kw)
@@ -226,10 +228,10 @@ def _verdict(finding, conductor, area, material, readings, trail, assumptions, o
     other = next(r for r, ok in zip(readings, passes) if not ok)
     kw["assumptions"] = tuple(assumptions) + ((first.assumption,) if first.assumption else ())
     if options.strict:
-        return finding(Status.NEEDS_INFO, f"{_label(bond, material)} bond is enough only {first.assumption}; "
+        return finding(Status.NEEDS_INFO, f"{_label(bond, material)} bond is enough only {first.condition}; "
                        f"otherwise {_label(other.size, material)} is required.", **kw)
     return finding(Status.PASS, f"{_label(bond, material)} bond is at least the {_label(first.size, material)} "
-                   f"required, {first.assumption} (otherwise {_label(other.size, material)}).", **kw)
+                   f"required {first.condition} (otherwise {_label(other.size, material)}; see assumptions).", **kw)
 
 
 def _proportional(motor, ruleset, options, conductor, area, material, base, params, assumptions) -> list[Requirement]:
@@ -248,10 +250,11 @@ def _proportional(motor, ruleset, options, conductor, area, material, base, para
     readings = [_increase(conductor, area, material, base, minimum.favourable, minimum.lines["favourable"], rule)]
     if minimum.cautious_consistent and minimum.cautious and minimum.cautious != minimum.favourable:
         cautious = _increase(conductor, area, material, base, minimum.cautious, minimum.lines["cautious"], rule)
-        note = (f"taking the smallest phase size as {size_label(minimum.cautious)}, the size every reading of the "
-                f"terminations and corrections needs (with the favourable reading it is "
-                f"{size_label(minimum.favourable)})")
-        readings = [Requirement(cautious.size, cautious.cmil, cautious.trail, note), readings[0]]
+        note = (f"The smallest phase size with enough ampacity is taken as {size_label(minimum.cautious)}, what "
+                f"every reading of the terminations and corrections needs; with the most favourable reading it is "
+                f"{size_label(minimum.favourable)} and the phase conductors count as upsized ({rule}).")
+        condition = f"if {size_label(minimum.cautious)} is the smallest adequate phase size"
+        readings = [Requirement(cautious.size, cautious.cmil, cautious.trail, note, condition), readings[0]]
     return readings
 
 

@@ -12,7 +12,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from checker.model import Finding, Motor, Status
+from checker.model import Finding, Motor, NotRun, Status
 from checker.rules.common import ReviewOptions, calc, num
 from checker.rules.disconnect import motor_current
 from checker.rules.ruleset import Ruleset
@@ -36,12 +36,13 @@ class Reading:
     why: str
 
 
-def readings(record: dict, params: dict, options: ReviewOptions) -> tuple[list[Reading], list[str], str | None]:
-    """Percentages that may apply to this motor.
+def readings(record: dict, params: dict) -> tuple[list[Reading], list[str]]:
+    """Percentages that may apply to this motor, and what they assume.
 
-    Returns (readings, assumptions, problem). Two readings mean the schedule
-    does not say whether the motor qualifies for the higher percentage; the
-    caller passes only when every reading passes.
+    Two readings mean the schedule does not say whether the motor qualifies
+    for the higher percentage; the caller passes only when every reading
+    passes and fails only when every reading fails (lenient and strict
+    reviews alike: nothing is assumed).
     """
     sf_min = params["service_factor_min"]
     rise_max = params.get("temperature_rise_max_c")
@@ -51,26 +52,24 @@ def readings(record: dict, params: dict, options: ReviewOptions) -> tuple[list[R
     assumptions: list[str] = []
     if sf is not None and sf >= sf_min:
         return [Reading(high.percent, high.relief_percent, high.rule,
-                        f"service factor {num(sf)} ≥ {num(sf_min)}")], assumptions, None
+                        f"service factor {num(sf)} ≥ {num(sf_min)}")], assumptions
     if rise_max is not None and rise is not None and rise <= rise_max:
         assumptions.append(f"{params['high_rule']} read as service factor ≥ {num(sf_min)} OR temperature rise "
                            f"≤ {num(rise_max)} °C (the usual reading; one published view requires both).")
         return [Reading(high.percent, high.relief_percent, high.rule,
-                        f"temperature rise {num(rise)} °C ≤ {num(rise_max)} °C")], assumptions, None
+                        f"temperature rise {num(rise)} °C ≤ {num(rise_max)} °C")], assumptions
     rise_known_out = rise_max is None or rise is not None
     if sf is not None and rise_known_out:
         why = f"service factor {num(sf)} < {num(sf_min)}"
         if rise_max is not None:
             why += f" and temperature rise {num(rise)} °C > {num(rise_max)} °C"
-        return [Reading(low.percent, low.relief_percent, low.rule, why)], assumptions, None
+        return [Reading(low.percent, low.relief_percent, low.rule, why)], assumptions
     missing = "service factor" if rise_known_out else ("service factor or temperature rise" if sf is None
                                                        else "temperature rise")
-    if options.strict:
-        return [], assumptions, f"the {missing} is not stated (strict review assumes nothing)"
     qualify = f"service factor ≥ {num(sf_min)}" + (f" or temperature rise ≤ {num(rise_max)} °C" if rise_max else "")
     return [Reading(low.percent, low.relief_percent, low.rule, f"{missing} not stated: other motors"),
             Reading(high.percent, high.relief_percent, high.rule, f"{missing} not stated: if the nameplate shows "
-                    f"{qualify}")], assumptions, None
+                    f"{qualify}")], assumptions
 
 
 def _setting_a(setting: dict, fla_a: float) -> tuple[float | None, float | None, str | None]:
@@ -86,6 +85,17 @@ def _setting_a(setting: dict, fla_a: float) -> tuple[float | None, float | None,
     return None, None, None
 
 
+def _maximum_detail(record: dict, ruleset: Ruleset, params: dict) -> str:
+    """This motor's maximum overload setting, for a check that could not run, or why it is unknown."""
+    fla_a = motor_current(record, ruleset, params.get("current_purpose", "overload")).current_a
+    if fla_a is None:
+        return "the maximum needs the nameplate current, which the schedule does not give"
+    if (record.get("duty") or {}).get("service", "continuous") != "continuous":
+        return "non-continuous duty: review the overload protection by hand"
+    found, _ = readings(record, params)
+    return f"setting must not exceed {calc(min(fla_a * r.percent / 100 for r in found))} A"
+
+
 def check_overload(motor: Motor, ruleset: Ruleset, options: ReviewOptions) -> list[Finding]:
     """The overload setting must not exceed the ruleset's percentage of nameplate full-load current."""
     spec = ruleset.check(CHECK_ID)
@@ -99,37 +109,41 @@ def check_overload(motor: Motor, ruleset: Ruleset, options: ReviewOptions) -> li
     setting = record.get("overload_setting")
     if setting is None and (record.get("mca_a") is not None or record.get("mocp") is not None):
         return []  # packaged equipment protects its own motors; its marking is checked by packaged-mca-mocp
+    # Schedules rarely carry overload settings (they are set in the field from the nameplate): without a
+    # setting in amperes the check cannot run; it is summarised once, with this motor's maximum as detail.
+    if setting is None or setting["kind"] in _NO_SETTING or setting["kind"] == "integral":
+        reason = ("no overload setting in amperes on the schedule" if setting is None
+                  else _NO_SETTING.get(setting["kind"], "thermal protector integral with the motor (its marking "
+                                                        "governs)"))
+        return [NotRun(CHECK_ID, reason, _maximum_detail(record, ruleset, params))]
     basis = motor_current(record, ruleset, params.get("current_purpose", "overload"))
     fla_a = basis.current_a
     if fla_a is None:
         return [finding(Status.NEEDS_INFO, f"The overload limit cannot be computed: {basis.problem}.")]
+    duty_assumed = []
+    if record.get("duty") is None:
+        if options.strict:
+            return [finding(Status.NEEDS_INFO, "The overload rule depends on the duty, which is not stated (strict "
+                            "review assumes nothing).")]
+        duty_assumed.append("Duty not stated: reviewed as a continuous-duty motor.")
     duty = (record.get("duty") or {}).get("service", "continuous")
     if duty != "continuous":
         rule = params.get("non_continuous_rule")
         where = f" (see {rule})" if rule else " (not encoded in this ruleset)"
         return [finding(Status.NEEDS_INFO, f"{duty.capitalize()}-duty motor: the overload rule for motors that do not "
                         f"run continuously differs{where}; review the overload protection by hand.")]
-    found, assumptions, problem = readings(record, params, options)
-    if problem:
-        return [finding(Status.NEEDS_INFO, f"The overload limit cannot be chosen: {problem}.")]
+    found, assumptions = readings(record, params)
     trail = list(basis.trail)
-    assumptions = list(basis.assumptions) + assumptions
+    assumptions = list(basis.assumptions) + duty_assumed + assumptions
     for r in found:
         trail.append(f"{r.why}: {num(r.percent)} % ({r.rule}) → {num(fla_a)} A × {num(r.percent)} % = "
                      f"{calc(fla_a * r.percent / 100)} A maximum")
     limits = [fla_a * r.percent / 100 for r in found]
     limit = min(limits)
-    if setting is None:
-        return [finding(Status.NEEDS_INFO, f"No overload setting could be read; the setting must not exceed "
-                        f"{calc(limit)} A.", limit=limit, trail=tuple(trail), assumptions=tuple(assumptions))]
-    if setting["kind"] == "integral":
-        return [finding(Status.NEEDS_INFO, "Thermal protector integral with the motor: acceptable only where the motor "
-                        "is marked thermally protected and the protector meets its trip limits; confirm on the "
-                        "nameplate.", limit=limit, trail=tuple(trail), assumptions=tuple(assumptions))]
     low_a, high_a, line = _setting_a(setting, fla_a)
     if low_a is None:
-        return [finding(Status.NEEDS_INFO, f"{_NO_SETTING[setting['kind']].capitalize()}; set it at no more than "
-                        f"{calc(limit)} A.", limit=limit, trail=tuple(trail), assumptions=tuple(assumptions))]
+        return [NotRun(CHECK_ID, "no overload setting in amperes on the schedule",
+                       f"setting must not exceed {calc(limit)} A")]
     if line:
         trail.append(line)
     rule = found[0].rule if len(found) == 1 else spec.rule

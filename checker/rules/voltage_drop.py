@@ -36,6 +36,10 @@ def _current(record: dict, ruleset: Ruleset, params: dict):
     basis = motor_current(record, ruleset, params.get("current_purpose", "conductor"))
     if basis.current_a is not None:
         return basis.current_a, list(basis.trail), list(basis.assumptions), None
+    if record.get("mca_a") is not None:  # packaged equipment: its marked MCA bounds the running current from above
+        mca_a = record["mca_a"]
+        return mca_a, [f"No motor current: the marked MCA {num(mca_a)} A is used"], \
+            ["Packaged equipment: the marked minimum circuit ampacity is used as the current (an upper bound)."], None
     percent = params.get("device_fallback_percent")
     ocpd = record.get("ocpd")
     if percent and ocpd:

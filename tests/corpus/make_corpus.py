@@ -26,7 +26,7 @@ from dataclasses import asdict, dataclass, field
 from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
-import builders as B  # noqa: E402
+import builders as B
 
 # A fixed past time given to every corpus file, so a write by motorcheck would show in the mtime.
 FIXED_MTIME_NS = 1_000_000_000 * 1_000_000_000
@@ -386,7 +386,7 @@ def build(directory: Path) -> list[Case]:
     intl = schedule(motors=[["泵-101", "原水泵", 25, "575/3", 27, "3#8 RW90 CU", "45A TD FUSE"],
                             ["НАС-2", "Насос промывки", 10, "575/3", 11, "3#12 RW90 CU", "15A TD FUSE"],
                             ["م-3", "مروحة العادم", 1, "208/3", 4.6, "3#12 RW90 CU", "15A CB"],
-                            ["Ω-4", "Ventilateur ‮evil‬ 🙂", 1, "208/3", 4.6, "3#12 RW90 CU", "15A CB"]])
+                            ["Ω-4", "Ventilateur \u202eevil\u202c 🙂", 1, "208/3", 4.6, "3#12 RW90 CU", "15A CB"]])
     add(Case("non-latin", "international.csv", "Chinese, Cyrillic, Arabic, emoji and a bidi override", "review",
              expect=[{"tag": "泵-101"}, {"tag": "НАС-2"}, {"tag": "م-3"}, {"motors": 4}], rows_read=len(intl)),
         csv_bytes(intl))

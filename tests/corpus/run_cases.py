@@ -31,14 +31,10 @@ ADDRESS_SPACE_CAP = 6 * 2**30
 
 def _preload() -> None:
     """Import what every review needs, so that forked children start warm."""
-    import checker.cli  # noqa: F401
-    import checker.report.build  # noqa: F401
-    import checker.report.csv_report  # noqa: F401
-    import checker.report.html_report as html
-    import checker.review  # noqa: F401
-    import openpyxl  # noqa: F401
-    import python_calamine  # noqa: F401
-
+    for module in ("checker.cli", "checker.report.build", "checker.report.csv_report", "checker.review",
+                   "openpyxl", "python_calamine"):
+        importlib.import_module(module)
+    html = importlib.import_module("checker.report.html_report")
     html._environment().get_template(html.TEMPLATE_NAME)
     if importlib.util.find_spec("checker.ingest.pdf") is not None:
         importlib.import_module("checker.ingest.pdf")
@@ -70,7 +66,7 @@ def _child(argv: list[str], stdout_path: Path, stderr_path: Path) -> None:
             os.dup2(target, fd)
             os.close(target)
         try:
-            soft, hard = resource.getrlimit(resource.RLIMIT_AS)
+            _soft, hard = resource.getrlimit(resource.RLIMIT_AS)
             cap = ADDRESS_SPACE_CAP if hard == resource.RLIM_INFINITY else min(ADDRESS_SPACE_CAP, hard)
             resource.setrlimit(resource.RLIMIT_AS, (cap, hard))
         except (ValueError, OSError):
@@ -80,7 +76,7 @@ def _child(argv: list[str], stdout_path: Path, stderr_path: Path) -> None:
             code = main(argv)
         except SystemExit as exc:
             code = exc.code if isinstance(exc.code, int) else (0 if exc.code is None else 1)
-        except BaseException:  # what the interpreter would show for an escaped exception
+        except BaseException:  # noqa: BLE001 - shown as the interpreter would show an escaped exception
             traceback.print_exc()
             code = 1
     finally:

@@ -1,0 +1,169 @@
+"""The Motors section of the HTML page, and its 'Findings in full' list, written as text.
+
+A facility schedule may hold 100 000 motors, so this part of the page is built
+in Python rather than through a Jinja loop, and kept small: each motor is a
+``<details>`` block (open unless it passes) with one line per finding, status,
+rule, message and cells, plus its row as submitted. A finding's working
+(limit and provided values, arithmetic, assumptions, citation) is written once
+per distinct finding in 'Findings in full', where the motor's rule links to;
+many motors share a finding because a review reuses a check's result for
+motors with equal values (``FindingEntry.shared`` in ``build.py``). A failed
+finding also shows its working inline, where the reviewer needs it.
+
+Every value from the report is escaped with markupsafe, as Jinja's autoescape
+would; nothing submitted is trusted.
+"""
+from __future__ import annotations
+
+from collections.abc import Mapping
+from typing import Any
+
+from markupsafe import Markup, escape
+
+# Worst first; the labels shown for each status.
+STATUS_LABELS = {"fail": "FAIL", "needs-info": "NEEDS INFO", "pass": "PASS"}
+# Finding lines carry a short class (a 10 000-motor page has 100 000 of them); a pass has none.
+_LINE_CLASS = {"pass": "", "fail": ' class="f"', "needs-info": ' class="n"'}
+NO_FINDINGS = "No check gave a finding for this motor, so it is counted as needing information."
+NO_MOTORS = "No motor rows were found in this file."
+
+
+def anchor(check_id: Any) -> str:
+    """Fragment-safe form of a check id, used for ``#check-<id>`` on both ends of a link."""
+    return "".join(ch if (ch.isascii() and (ch.isalnum() or ch in "-_.")) else "-" for ch in str(check_id))
+
+
+def format_number(value: Any) -> str:
+    """A limit or provided value for people: up to 3 decimals, no trailing zeros; dash if missing."""
+    if value is None or isinstance(value, bool):
+        return "\u2014"
+    if isinstance(value, (int, float)):
+        text = f"{float(value):.3f}".rstrip("0").rstrip(".")
+        return "0" if text == "-0" else text
+    return str(value)
+
+
+def _e(value: Any) -> str:
+    return str(escape("" if value is None else value))
+
+
+def _status(value: Any) -> tuple[str, str]:
+    """(class suffix, label) of a status; an unknown status is shown as given, escaped."""
+    text = str(value)
+    return _e(text), _e(STATUS_LABELS.get(text, text.upper()))
+
+
+def working_html(finding: Mapping[str, Any]) -> str:
+    """Limit and provided values, arithmetic and assumptions of one finding (may be '')."""
+    parts = []
+    limit, provided, unit = finding.get("limit"), finding.get("provided"), finding.get("unit") or ""
+    if limit is not None or provided is not None:
+        parts.append(f'<p class="lp">Limit {_e(format_number(limit))} {_e(unit)} · provided '
+                     f'{_e(format_number(provided))} {_e(unit)}</p>')
+    trail = finding.get("trail") or []
+    if trail:
+        parts.append('<ol class="trail">' + "".join(f"<li>{_e(step)}</li>" for step in trail) + "</ol>")
+    assumptions = finding.get("assumptions") or []
+    if assumptions:
+        parts.append('<p class="assume-h">Assumed</p><ul class="assume">'
+                     + "".join(f"<li>{_e(item)}</li>" for item in assumptions) + "</ul>")
+    return "".join(parts)
+
+
+class _Catalogue:
+    """Distinct findings in order of first appearance: id, motors counted, rendered line head."""
+
+    def __init__(self, appendix_ids: set[str]) -> None:
+        self.appendix_ids = appendix_ids
+        self.ids: dict[int, int] = {}           # id(shared part) -> number
+        self.entries: list[dict[str, Any]] = []  # the shared parts, in number order
+        self.counts: list[int] = []
+        self.heads: list[str] = []
+
+    def number(self, finding: Mapping[str, Any]) -> int:
+        """Number of this finding's entry ('w-<n>'), adding it on first sight."""
+        part = getattr(finding, "shared", None)
+        part = part if isinstance(part, dict) and _same(finding, part) else finding
+        key = id(part)
+        number = self.ids.get(key)
+        if number is None:
+            number = self.ids[key] = len(self.entries) + 1
+            self.entries.append(part)
+            self.counts.append(0)
+            kind = _LINE_CLASS.get(str(part.get("status")), f' class="st-{_e(part.get("status"))}"')
+            self.heads.append(f'<li{kind}><a href="#w-{number}">{_e(part.get("rule"))}</a> {_e(part.get("message"))}')
+        self.counts[number - 1] += 1
+        return number
+
+    def html(self) -> str:
+        out = []
+        for number, (part, count) in enumerate(zip(self.entries, self.counts), start=1):
+            status, label = _status(part.get("status"))
+            check = str(part.get("check"))
+            rule = _e(part.get("rule"))
+            if check in self.appendix_ids:
+                rule = f'<a href="#check-{_e(anchor(check))}">{rule}</a>'
+            citation = part.get("citation")
+            out.append(
+                f'<article class="work st-{status}" id="w-{number}"><p class="work-h"><span class="badge st-{status}">'
+                f'{label}</span> {rule} {_e(part.get("message"))} <span class="cnt">({count} '
+                f'{"motor" if count == 1 else "motors"})</span></p>{working_html(part)}'
+                + (f'<p class="cite">{_e(citation)}</p>' if citation else "") + "</article>\n")
+        return "".join(out)
+
+
+def _same(finding: Mapping[str, Any], part: Mapping[str, Any]) -> bool:
+    """The finding still carries every value of its shared part (nothing changed it since)."""
+    return all(finding.get(key, finding) is value for key, value in part.items())
+
+
+def _cells_text(finding: Mapping[str, Any]) -> str:
+    labels = list(dict.fromkeys(str(cell.get("label", "")) for cell in finding.get("cells") or []
+                                if isinstance(cell, Mapping)))
+    return f" [{_e(' '.join(labels))}]" if labels else ""
+
+
+def _raw_text(raw: Any, shown: tuple[Any, ...]) -> str:
+    """The row as submitted, 'HEADER: text' by column (the header's last level), leaving out
+    the texts already in the motor's summary line (its tag and description)."""
+    if not isinstance(raw, Mapping) or not raw:
+        return ""
+    pairs = " · ".join(f"{_e(str(header).rsplit(' / ', 1)[-1])}: {_e(text)}" for header, text in raw.items()
+                       if text not in shown)
+    return f'<p class="raw">As submitted: {pairs}</p>' if pairs else ""
+
+
+def motors_html(motors: list[Any], appendix_ids: set[str]) -> tuple[Markup, Markup]:
+    """(the motor blocks, the 'Findings in full' entries) for the page."""
+    catalogue = _Catalogue(appendix_ids)
+    out = []
+    for index, motor in enumerate(motors, start=1):
+        if not isinstance(motor, Mapping):
+            continue
+        status, label = _status(motor.get("status"))
+        record = motor.get("record") if isinstance(motor.get("record"), Mapping) else {}
+        source = motor.get("source") if isinstance(motor.get("source"), Mapping) else {}
+        description = record.get("description")
+        out.append(
+            f'<details class="motor st-{status}" id="motor-{index}"{"" if motor.get("status") == "pass" else " open"}>'
+            f'<summary><span class="badge st-{status}">{label}</span> <span class="tag">{_e(motor.get("tag"))}</span>'
+            + (f' <span class="desc">{_e(description)}</span>' if description else "")
+            + f' <span class="loc">{_e(source.get("label", ""))}</span></summary>\n')
+        findings = [f for f in motor.get("findings") or [] if isinstance(f, Mapping)]
+        if findings:
+            out.append('<ul class="fl">')
+            for finding in findings:
+                number = catalogue.number(finding)
+                out.append(catalogue.heads[number - 1])
+                out.append(_cells_text(finding))
+                if finding.get("status") == "fail":
+                    out.append(f'<div class="wk">{working_html(finding)}</div>')
+                out.append("</li>\n")
+            out.append("</ul>\n")
+        else:
+            out.append(f'<p class="empty">{NO_FINDINGS}</p>\n')
+        out.append(_raw_text(motor.get("raw"), (motor.get("tag"), description)))
+        out.append("</details>\n")
+    if not out:
+        out.append(f'<p class="empty">{NO_MOTORS}</p>\n')
+    return Markup("".join(out)), Markup(catalogue.html())
