@@ -60,3 +60,11 @@ def test_schema_violation_becomes_needs_info_and_drops_the_value(tmp_path):
     motor = review.motors[0].motor
     assert "fla_a" not in motor.record
     assert any(f.check in ("record-schema", "cell-value") and "fla" in " ".join(f.fields) for f in motor.input_findings)
+
+
+def test_standby_motor_described_as_spare_is_reviewed(tmp_path):
+    review = _review(tmp_path, [HEADER,
+                                ["P-9", "Spare sump pump (standby)", "5", "", "575", "3", "6.1", "3#12", "15A CB", ""],
+                                ["SPARE", "", "", "", "", "", "", "", "20A CB", ""]])
+    assert [m.motor.tag for m in review.motors] == ["P-9"]
+    assert [row.reason for row in review.skipped if row.source.row == 3] == ["spare or space, not a motor"]

@@ -217,8 +217,11 @@ def classify_row(cells: list[str], mapped: dict[str, str], header_texts: dict[st
     if not filled:
         return "blank row"
     first = filled[0]
-    if _SPARE_RE.match(mapped.get("tag", "")) or _SPARE_RE.match(mapped.get("description", "")) or (
-            len(filled) <= 2 and _SPARE_RE.match(first)):
+    # 'SPARE' as the tag marks an unused position; a description such as 'Spare sump pump' with motor
+    # ratings is an installed standby motor and is reviewed.
+    rated = any(mapped.get(f) for f in ("hp", "kw", "fla"))
+    if _SPARE_RE.match(mapped.get("tag", "")) or (not rated and (
+            _SPARE_RE.match(mapped.get("description", "")) or (len(filled) <= 2 and _SPARE_RE.match(first)))):
         return "spare or space, not a motor"
     repeats = [f for f, text in mapped.items() if text and header_texts.get(f, "").lower().endswith(text.lower())]
     if len(repeats) >= 3 and len(repeats) * 2 >= len([t for t in mapped.values() if t]):

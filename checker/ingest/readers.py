@@ -124,7 +124,7 @@ def read_grids(path: pathlib.Path, sheet: str | None = None) -> list[Grid]:
 
     Parameters
     ----------
-    path : file to read (xlsx/xlsm or CSV/TSV/TXT; decided by content).
+    path : file to read (xlsx/xlsm, CSV/TSV/TXT, or PDF via ``checker.ingest.pdf``; decided by content).
     sheet : for a workbook, the one sheet to read; ``None`` reads every sheet,
         hidden ones included (``Grid.hidden`` says which). Ignored for CSV,
         which has no sheets.
