@@ -31,9 +31,10 @@ def build_parser() -> argparse.ArgumentParser:
         "pass / fail / needs-info findings with the governing rule, the arithmetic and the cell they came from."))
     parser.add_argument("--version", action="version", version=f"motorcheck {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
-    review = sub.add_parser("review", help="review a schedule (xlsx or CSV) and write HTML and JSON reports",
+    review = sub.add_parser("review", help="review a schedule (xlsx, CSV or PDF) and write HTML and JSON reports",
                             description="Review a submitted motor schedule and write reports.")
-    review.add_argument("schedule", type=Path, metavar="SCHEDULE", help="the schedule as submitted (.xlsx or .csv)")
+    review.add_argument("schedule", type=Path, metavar="SCHEDULE",
+                        help="the schedule as submitted (.xlsx, .csv or a PDF drawing)")
     review.add_argument("--code", default=None, metavar="RULESET",
                         help="ruleset to review against: a name from 'motorcheck codes' or a ruleset file (default: "
                              "[project] code in ./motorcheck.toml, else cec-2015)")
@@ -56,9 +57,9 @@ def build_parser() -> argparse.ArgumentParser:
 
 def _cmd_review(args) -> int:
     from checker.report.build import review_to_dict
-    from checker.report.files import write_atomic
-    from checker.report.html_report import render_html
-    from checker.report.json_report import dumps
+    from checker.report.files import write_atomic, write_atomic_chunks
+    from checker.report.html_report import iter_html
+    from checker.report.json_report import iter_json
     from checker.report.text_summary import summary_text
     from checker.progress import Progress
     from checker.review import review_schedule
@@ -78,16 +79,16 @@ def _cmd_review(args) -> int:
         review = review_schedule(args.schedule, code=code, sheet=args.sheet, options=ReviewOptions(strict=strict),
                                  amendments=amendments, progress=progress)
         progress.stage("building the report")
-        report = review_to_dict(review, __version__)
+        report = review_to_dict(review, __version__, lazy=True)  # motors built as they are written
         stem = args.schedule.stem
         json_path = args.json or Path("reports") / f"{stem}.json"
         html_path = args.html or Path("reports") / f"{stem}.html"
         outputs = [json_path, html_path] + ([args.csv] if args.csv else [])
         _refuse_overwriting_input(args.schedule, outputs)
         progress.stage("writing the JSON report")
-        write_atomic(json_path, dumps(report))
+        write_atomic_chunks(json_path, iter_json(report))
         progress.stage("writing the HTML report")
-        write_atomic(html_path, render_html(report))
+        write_atomic_chunks(html_path, iter_html(report))
         if args.csv:
             from checker.report.csv_report import render_csv
             write_atomic(args.csv, render_csv(report))

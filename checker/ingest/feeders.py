@@ -32,7 +32,7 @@ from checker.ingest.layout import (
     normalise_header,
 )
 from checker.ingest.readers import Grid
-from checker.model import Motor, SkippedRow, SourceRef, column_letter
+from checker.model import Motor, SkippedRow, SourceRef
 
 __all__ = [
     "FeederRow",
@@ -299,7 +299,7 @@ def locate_feeder_tables(grid: Grid, motor_tables: list[LocatedTable] | tuple = 
         data_last = max(_last_non_empty(grid, last + 1, stop), last)
         if stop < n:
             data_last = _without_next_title(grid, last + 1, data_last)
-        columns = tuple(Column(c, column_letter(c), name, texts[c]) for c, name in sorted(mapping.items()))
+        columns = tuple(Column(c, grid.column_label(c), name, texts[c]) for c, name in sorted(mapping.items()))
         tables.append(FeederTable(grid, title_first, first, last, last + 1, data_last, columns))
     return tables
 

@@ -22,7 +22,7 @@ from jsonschema import Draft202012Validator
 
 from checker.ingest import values
 from checker.ingest.layout import LocatedTable
-from checker.model import Finding, Motor, Parsed, SkippedRow, SourceRef, Status, column_letter
+from checker.model import Finding, Motor, Parsed, SkippedRow, SourceRef, Status
 
 SCHEMA_PATH = Path(__file__).resolve().parents[2] / "schemas" / "motor.schema.json"
 
@@ -387,7 +387,7 @@ def normalize_table(table: LocatedTable) -> TableResult:
             first_col = next(i for i, c in enumerate(cells) if c)
             heading = " ".join(cells[first_col].split())
             # Only a heading naming a source (MCC, panel, ...) feeds the rows below; an area heading does not.
-            section = (heading, source.at_column(column_letter(first_col))) if _SOURCE_RE.search(heading) else None
+            section = (heading, source.at_column(grid.column_label(first_col))) if _SOURCE_RE.search(heading) else None
         result.skipped.append(SkippedRow(source, reason, _short(" | ".join(c for c in cells if c), 200)))
     return result
 

@@ -104,8 +104,8 @@ PROGRESS_MIN_PAGES = 10      # progress on stderr (a terminal only) for files wi
 FALLBACK_PAGES = 20          # pages parsed in depth to list the tables seen when no page looks like a schedule
 # Guard against pages that would stall pdfminer (it lays out ~5,000 drawn objects a second) or unpack a
 # compressed-stream bomb: a page's content streams may unpack to at most this much (common practice; a
-# schedule sheet is typically well under it). Added for tests/test_corpus.py's many-objects case.
-MAX_PAGE_CONTENT_BYTES = 1 * 2**20
+# CAD schedule sheet with a plan view on it stays under it). Added for tests/test_corpus.py's many-objects case.
+MAX_PAGE_CONTENT_BYTES = 8 * 2**20
 
 _SUPERSCRIPT_DIGITS = str.maketrans("0123456789", "⁰¹²³⁴⁵⁶⁷⁸⁹")
 _SUPERSCRIPT_KEEP = "*†‡§"

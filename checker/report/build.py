@@ -8,7 +8,7 @@ from __future__ import annotations
 
 import math
 from functools import lru_cache
-from collections.abc import Iterable, Mapping
+from collections.abc import Iterable, Iterator, Mapping, Sequence
 from datetime import date, datetime, time
 from enum import Enum
 from pathlib import PurePath, PurePosixPath, PureWindowsPath
@@ -201,6 +201,47 @@ def motor_dict(motor_review: model.MotorReview,
     }
 
 
+class MotorDicts(Sequence):
+    """``report["motors"]`` built one motor at a time: each read makes that motor's dict anew.
+
+    A 100 000-motor report as a list holds about a million finding dicts (~1 GB); read in
+    order by the emitters, this holds one. The shared parts of findings stay shared, so
+    the JSON and HTML emitters still write each distinct finding's text once.
+    """
+
+    def __init__(self, reviews: tuple[model.MotorReview, ...],
+                 shared: dict[int, tuple[model.Finding, dict[str, Any]]]) -> None:
+        self._reviews = reviews
+        self._shared = shared
+
+    def __len__(self) -> int:
+        return len(self._reviews)
+
+    def __getitem__(self, index):
+        if isinstance(index, slice):
+            return [motor_dict(review, self._shared) for review in self._reviews[index]]
+        return motor_dict(self._reviews[index], self._shared)
+
+    def __iter__(self) -> Iterator[dict[str, Any]]:
+        for review in self._reviews:
+            yield motor_dict(review, self._shared)
+
+    def having(self, status: str) -> Iterator[dict[str, Any]]:
+        """The dicts of the motors with at least one finding of ``status``, in order."""
+        for review in self._reviews:
+            if any(model.Status(f.status).value == status for f in (*review.motor.input_findings, *review.findings)):
+                yield motor_dict(review, self._shared)
+
+    def statuses(self) -> tuple[list[str], list[str]]:
+        """(each motor's status, every finding's status), as ``motor_dict`` would give them."""
+        motor_statuses, finding_statuses = [], []
+        for review in self._reviews:
+            statuses = [model.Status(f.status).value for f in (*review.motor.input_findings, *review.findings)]
+            motor_statuses.append(worst_status(statuses))
+            finding_statuses.extend(statuses)
+        return motor_statuses, finding_statuses
+
+
 def skipped_dict(row: model.SkippedRow) -> dict[str, Any]:
     return {"source": source_dict(row.source), "reason": row.reason, "text": row.text}
 
@@ -276,8 +317,11 @@ def summary_dict(
     feeders: list[dict[str, Any]] = (),
 ) -> dict[str, Any]:
     """Counts and result. Every input row is a motor, a skipped row or a feeder row."""
-    motor_statuses = [motor["status"] for motor in motors]
-    finding_statuses = [finding["status"] for motor in motors for finding in motor["findings"]]
+    if isinstance(motors, MotorDicts):
+        motor_statuses, finding_statuses = motors.statuses()
+    else:
+        motor_statuses = [motor["status"] for motor in motors]
+        finding_statuses = [finding["status"] for motor in motors for finding in motor["findings"]]
     feeder_rows = sum(1 for item in feeders if item["feeder"] is not None)
     return {
         "rows_read": len(motors) + skipped_count + feeder_rows,
@@ -311,7 +355,7 @@ def input_dict(given: Mapping[str, Any]) -> dict[str, Any]:
     return out
 
 
-def review_to_dict(review: model.Review, tool_version: str) -> dict[str, Any]:
+def review_to_dict(review: model.Review, tool_version: str, lazy: bool = False) -> dict[str, Any]:
     """The report dict for ``review`` (shape: ``schemas/review.schema.json``).
 
     Parameters
@@ -320,6 +364,10 @@ def review_to_dict(review: model.Review, tool_version: str) -> dict[str, Any]:
         The finished review.
     tool_version : str
         motorcheck's version, written into ``tool.version``.
+    lazy : bool
+        Give ``motors`` as a :class:`MotorDicts` sequence that builds each motor's dict when it
+        is read, instead of a list (what the emitters need for 100 000 motors in well under
+        1 GiB; a JSON-schema validator wants the list).
 
     Returns
     -------
@@ -327,7 +375,10 @@ def review_to_dict(review: model.Review, tool_version: str) -> dict[str, Any]:
         Plain JSON-safe data; see the schema for every key.
     """
     shared: dict[int, tuple[model.Finding, dict[str, Any]]] = {}
-    motors = [motor_dict(motor_review, shared) for motor_review in review.motors]
+    if lazy:
+        motors: list[dict[str, Any]] | MotorDicts = MotorDicts(review.motors, shared)
+    else:
+        motors = [motor_dict(motor_review, shared) for motor_review in review.motors]
     skipped = [skipped_dict(row) for row in review.skipped]
     checks_not_run = [check_not_run_dict(entry) for entry in review.checks_not_run]
     feeders = [feeder_dict(feeder) for feeder in review.feeders]

@@ -4,6 +4,7 @@ from __future__ import annotations
 import os
 import stat
 import tempfile
+from collections.abc import Iterable
 from pathlib import Path
 
 # Mode for a new report file: readable by others like any document (the temp file starts at 0600).
@@ -19,6 +20,12 @@ def write_atomic(path: Path, text: str) -> None:
     On any error the temporary file is removed and the ``OSError`` is raised
     for the caller to turn into a one-line message.
     """
+    write_atomic_chunks(path, (text,))
+
+
+def write_atomic_chunks(path: Path, chunks: Iterable[str]) -> None:
+    """:func:`write_atomic` for text given in pieces, written as they come (a 100 000-motor
+    report is never held whole in memory). ``path`` changes only once every piece is written."""
     path = Path(path)
     path.parent.mkdir(parents=True, exist_ok=True)
     try:
@@ -27,8 +34,9 @@ def write_atomic(path: Path, text: str) -> None:
         mode = NEW_FILE_MODE
     handle, temp_name = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
     try:
-        with os.fdopen(handle, "w", encoding="utf-8", newline="") as stream:
-            stream.write(text)
+        with os.fdopen(handle, "w", encoding="utf-8", newline="", buffering=1 << 20) as stream:
+            for chunk in chunks:
+                stream.write(chunk)
             stream.flush()
             os.fsync(stream.fileno())
         os.chmod(temp_name, mode)

@@ -15,7 +15,7 @@ would; nothing submitted is trusted.
 """
 from __future__ import annotations
 
-from collections.abc import Mapping
+from collections.abc import Iterable, Iterator, Mapping
 from typing import Any
 
 from markupsafe import Markup, escape
@@ -133,37 +133,64 @@ def _raw_text(raw: Any, shown: tuple[Any, ...]) -> str:
     return f'<p class="raw">As submitted: {pairs}</p>' if pairs else ""
 
 
-def motors_html(motors: list[Any], appendix_ids: set[str]) -> tuple[Markup, Markup]:
-    """(the motor blocks, the 'Findings in full' entries) for the page."""
-    catalogue = _Catalogue(appendix_ids)
-    out = []
-    for index, motor in enumerate(motors, start=1):
-        if not isinstance(motor, Mapping):
-            continue
-        status, label = _status(motor.get("status"))
-        record = motor.get("record") if isinstance(motor.get("record"), Mapping) else {}
-        source = motor.get("source") if isinstance(motor.get("source"), Mapping) else {}
-        description = record.get("description")
-        out.append(
-            f'<details class="motor st-{status}" id="motor-{index}"{"" if motor.get("status") == "pass" else " open"}>'
-            f'<summary><span class="badge st-{status}">{label}</span> <span class="tag">{_e(motor.get("tag"))}</span>'
-            + (f' <span class="desc">{_e(description)}</span>' if description else "")
-            + f' <span class="loc">{_e(source.get("label", ""))}</span></summary>\n')
-        findings = [f for f in motor.get("findings") or [] if isinstance(f, Mapping)]
-        if findings:
-            out.append('<ul class="fl">')
-            for finding in findings:
-                number = catalogue.number(finding)
-                out.append(catalogue.heads[number - 1])
-                out.append(_cells_text(finding))
-                if finding.get("status") == "fail":
-                    out.append(f'<div class="wk">{working_html(finding)}</div>')
-                out.append("</li>\n")
-            out.append("</ul>\n")
-        else:
-            out.append(f'<p class="empty">{NO_FINDINGS}</p>\n')
-        out.append(_raw_text(motor.get("raw"), (motor.get("tag"), description)))
-        out.append("</details>\n")
-    if not out:
-        out.append(f'<p class="empty">{NO_MOTORS}</p>\n')
-    return Markup("".join(out)), Markup(catalogue.html())
+class MotorsSection:
+    """The motor blocks, one piece per motor when iterated, then (``findings()``) the entries of
+    'Findings in full' those motors referred to. Iterated by the template as it is written out,
+    so a 100 000-motor page is never held whole."""
+
+    def __init__(self, motors: Iterable[Any], appendix_ids: set[str]) -> None:
+        self.motors = motors
+        self.appendix_ids = appendix_ids
+        self.catalogue = _Catalogue(appendix_ids)
+        self.done = False
+
+    def __iter__(self) -> Iterator[Markup]:
+        self.catalogue = _Catalogue(self.appendix_ids)
+        written = False
+        for index, motor in enumerate(self.motors, start=1):
+            if isinstance(motor, Mapping):
+                written = True
+                yield Markup(_motor_block(motor, index, self.catalogue))
+        if not written:
+            yield Markup(f'<p class="empty">{NO_MOTORS}</p>\n')
+        self.done = True
+
+    def findings(self) -> Markup:
+        if not self.done:
+            for _ in self:
+                pass
+        return Markup(self.catalogue.html())
+
+
+def _motor_block(motor: Mapping[str, Any], index: int, catalogue: _Catalogue) -> str:
+    status, label = _status(motor.get("status"))
+    record = motor.get("record") if isinstance(motor.get("record"), Mapping) else {}
+    source = motor.get("source") if isinstance(motor.get("source"), Mapping) else {}
+    description = record.get("description")
+    out = [f'<details class="motor st-{status}" id="motor-{index}"{"" if motor.get("status") == "pass" else " open"}>'
+           f'<summary><span class="badge st-{status}">{label}</span> <span class="tag">{_e(motor.get("tag"))}</span>'
+           + (f' <span class="desc">{_e(description)}</span>' if description else "")
+           + f' <span class="loc">{_e(source.get("label", ""))}</span></summary>\n']
+    findings = [f for f in motor.get("findings") or [] if isinstance(f, Mapping)]
+    if findings:
+        out.append('<ul class="fl">')
+        for finding in findings:
+            number = catalogue.number(finding)
+            out.append(catalogue.heads[number - 1])
+            out.append(_cells_text(finding))
+            if finding.get("status") == "fail":
+                out.append(f'<div class="wk">{working_html(finding)}</div>')
+            out.append("</li>\n")
+        out.append("</ul>\n")
+    else:
+        out.append(f'<p class="empty">{NO_FINDINGS}</p>\n')
+    out.append(_raw_text(motor.get("raw"), (motor.get("tag"), description)))
+    out.append("</details>\n")
+    return "".join(out)
+
+
+def motors_html(motors: Iterable[Any], appendix_ids: set[str]) -> tuple[Markup, Markup]:
+    """(the motor blocks, the 'Findings in full' entries) as two pieces of markup."""
+    section = MotorsSection(motors, appendix_ids)
+    blocks = Markup("".join(section))
+    return blocks, section.findings()

@@ -11,13 +11,15 @@ from __future__ import annotations
 import base64
 import hashlib
 import json
+from collections.abc import Iterator
 from functools import lru_cache
 from pathlib import Path
 from typing import Any
 
 from jinja2 import Environment, FileSystemLoader, StrictUndefined
 
-from checker.report.html_motors import motors_html
+from checker.report.build import MotorDicts
+from checker.report.html_motors import MotorsSection
 
 TEMPLATES_DIR = Path(__file__).resolve().parent / "templates"
 TEMPLATE_NAME = "review.html.j2"
@@ -125,13 +127,12 @@ def _context(report: dict[str, Any]) -> dict[str, Any]:
     ruleset = _mapping(report.get("ruleset"))
     given_input = _mapping(report.get("input"))
     summary = _mapping(report.get("summary"))
-    motors = _list(report.get("motors"))
+    motors = report.get("motors") if isinstance(report.get("motors"), MotorDicts) else _list(report.get("motors"))
     checks = [entry for entry in _list(report.get("checks")) if isinstance(entry, dict)]
     columns, rows = table_grid(_list(report.get("tables")))
     by_status = _mapping(summary.get("motors_by_status"))
     filter_counts = {"all": len(motors), **{key: by_status.get(key, 0) for key in STATUS_LABELS}}
     appendix_ids = {str(entry.get("id")) for entry in checks}
-    motors_part, findings_part = motors_html(motors, appendix_ids)
     return {
         "report": report,
         "tool": _mapping(report.get("tool")),
@@ -143,8 +144,7 @@ def _context(report: dict[str, Any]) -> dict[str, Any]:
         "cautions": _list(report.get("cautions")),
         "notes": _list(report.get("notes")),
         "motors": motors,
-        "motors_html": motors_part,
-        "findings_html": findings_part,
+        "motors_section": MotorsSection(motors, appendix_ids),
         "skipped": _list(report.get("skipped")),
         "feeders": [entry for entry in _list(report.get("feeders")) if isinstance(entry, dict)],
         "checks": checks,
@@ -171,4 +171,9 @@ def render_html(report: dict[str, Any]) -> str:
         The page; its inline ``<style>`` and ``<script>`` are the only ones the
         page's Content-Security-Policy allows.
     """
-    return _environment().get_template(TEMPLATE_NAME).render(**_context(report))
+    return "".join(iter_html(report))
+
+
+def iter_html(report: dict[str, Any]) -> Iterator[str]:
+    """The page of :func:`render_html` in pieces (about one per motor), to write as they come."""
+    return _environment().get_template(TEMPLATE_NAME).generate(**_context(report))

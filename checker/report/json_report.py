@@ -2,12 +2,13 @@
 from __future__ import annotations
 
 import json
+from collections.abc import Iterator
 from functools import lru_cache
 from operator import is_
 from pathlib import Path
 from typing import Any
 
-from checker.report.build import FindingEntry
+from checker.report.build import FindingEntry, MotorDicts
 
 SCHEMAS_DIR = Path(__file__).resolve().parents[2] / "schemas"
 REVIEW_SCHEMA = SCHEMAS_DIR / "review.schema.json"
@@ -25,21 +26,29 @@ def dumps(report: dict[str, Any]) -> str:
     value be written by the C encoder. Raises ``ValueError`` for NaN or infinity (never produced
     by ``review_to_dict``).
     """
+    return "".join(iter_json(report))
+
+
+def iter_json(report: dict[str, Any]) -> Iterator[str]:
+    """The text of :func:`dumps` in pieces (about one per object), to write as they come."""
     shared: dict[int, str] = {}
-    out = ["{\n"]
+    yield "{\n"
     for number, (key, value) in enumerate(report.items()):
-        out.append((",\n  " if number else "  ") + _encode(str(key)) + ": ")
-        if isinstance(value, list) and value and all(isinstance(item, dict) for item in value):
-            out.append("[\n    ")
+        head = (",\n  " if number else "  ") + _encode(str(key)) + ": "
+        if isinstance(value, MotorDicts) or (isinstance(value, list) and value
+                                              and all(isinstance(item, dict) for item in value)):
+            if not len(value):
+                yield head + "[]"
+                continue
+            piece = head + "[\n    "
             for index, item in enumerate(value):
-                if index:
-                    out.append(",\n    ")
+                out = [piece] if index == 0 else [",\n    "]
                 _object_text(item, shared, out)
-            out.append("\n  ]")
+                yield "".join(out)
+            yield "\n  ]"
         else:
-            out.append(_encode(value))
-    out.append("\n}\n")
-    return "".join(out)
+            yield head + _encode(value)
+    yield "\n}\n"
 
 
 def _object_text(item: dict[str, Any], shared: dict[int, str], out: list[str]) -> None:

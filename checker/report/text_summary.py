@@ -7,6 +7,8 @@ from collections.abc import Iterator
 from itertools import chain, islice
 from typing import Any
 
+from checker.report.build import MotorDicts
+
 LINE_WIDTH = 120
 STATUS_WORDS = {"fail": "FAIL", "needs-info": "NEEDS-INFO", "pass": "PASS"}
 # Failures are listed before needs-info so that a capped screen still shows every failure it can.
@@ -36,8 +38,9 @@ def finding_lines(report: dict[str, Any]) -> list[str]:
 
 
 def _finding_lines(report: dict[str, Any]) -> Iterator[str]:
+    motors = report.get("motors", [])
     for status in LISTED_STATUSES:
-        for motor in report.get("motors", []):
+        for motor in (motors.having(status) if isinstance(motors, MotorDicts) else motors):
             findings = [f for f in motor.get("findings", []) if f.get("status") == status]
             if not findings:
                 continue
@@ -50,6 +53,8 @@ def _finding_lines(report: dict[str, Any]) -> Iterator[str]:
 
 def _listed_count(items: list[Any], statuses: tuple[str, ...]) -> int:
     """How many lines the findings of ``items`` (motors or feeders) with these statuses give."""
+    if isinstance(items, MotorDicts):
+        return sum(1 for status in items.statuses()[1] if status in statuses)
     return sum(1 for item in items for f in item.get("findings", []) if f.get("status") in statuses)
 
 
