@@ -154,20 +154,26 @@ def conductor_ampacity_a(conductor: dict, ruleset: Ruleset) -> tuple[float | Non
     """Allowable ampacity of the phase conductors (all parallel sets) in the termination column, uncorrected,
     and a trail line. Returns (None, reason) when the size is not listed for that material."""
     params = ruleset.check(CHECK_ID).params
-    return _table_ampacity(conductor, ruleset, params["ampacity_column"])
+    return table_ampacity(conductor, ruleset, params["ampacity_column"])
 
 
-def _ampacity_table(conductor: dict, ruleset: Ruleset) -> Table:
-    params = ruleset.check(CHECK_ID).params
+def _ampacity_table(conductor: dict, ruleset: Ruleset, params: dict | None = None) -> Table:
+    params = params or ruleset.check(CHECK_ID).params
     return ruleset.table(params["copper_table"] if conductor.get("material", "cu") == "cu" else params["aluminum_table"])
 
 
-def _table_ampacity(conductor: dict, ruleset: Ruleset, column: str) -> tuple[float | None, str]:
-    table = _ampacity_table(conductor, ruleset)
+def table_ampacity(conductor: dict, ruleset: Ruleset, column: str,
+                   params: dict | None = None) -> tuple[float | None, str]:
+    """Tabulated ampacity of all parallel sets in one column, and its trail line.
+
+    ``params`` names the copper and aluminium tables (default: this check's); feeder checks pass theirs.
+    Returns (None, reason) when the size has no value in that column.
+    """
+    table = _ampacity_table(conductor, ruleset, params)
     per_set = table.get(conductor["size"], column)
     label = conductor_label({**conductor, "sets": 1})
     if per_set is None:
-        return None, f"{label} is not a size listed in {table.citation}"
+        return None, f"{label} is not a size listed in the {_column_label(column)} column of {table.citation}"
     sets = conductor.get("sets", 1)
     line = f"{label}, {_column_label(column)} column of {table.citation} = {num(per_set)} A"
     if sets > 1:
@@ -330,7 +336,7 @@ def _uncorrected_reading(conductor: dict, ruleset: Ruleset, termination: str) ->
     (a 60 degC conductor never carries its 75 degC ampacity)."""
     column, why = insulation_column(conductor, ruleset)
     lower = (column is not None and (_column_rating(column) or 0) < (_column_rating(termination) or 0))
-    value, line = _table_ampacity(conductor, ruleset, column if lower else termination)
+    value, line = table_ampacity(conductor, ruleset, column if lower else termination)
     if value is None:
         return Reading(None, (), problem=f"{line}; confirm the conductor size and material")
     return Reading(value, (why + f": its {_column_label(column)} column is used", line) if lower else (line,))

@@ -38,6 +38,7 @@ from dataclasses import dataclass
 from checker.ingest.feeders import FeederRow, group_key
 from checker.model import FeederReview, Finding, Motor, SourceRef, Status
 from checker.rules.common import ReviewOptions, calc, conductor_label, num
+from checker.rules.conductors import table_ampacity
 from checker.rules.current import CurrentBasis, current_basis
 from checker.rules.overcurrent import (
     DEVICE_NAMES,
@@ -205,18 +206,7 @@ def feeder_ampacity_a(conductor: dict, ruleset: Ruleset, column: str | None = No
     ``column`` defaults to ``[checks.feeder-ampacity.params] ampacity_column``.
     """
     params = ruleset.check(AMPACITY_CHECK).params
-    material = conductor.get("material", "cu")
-    table = ruleset.table(params["copper_table"] if material == "cu" else params["aluminum_table"])
-    column = column or params["ampacity_column"]
-    per_set = table.get(conductor["size"], column)
-    label = conductor_label({**conductor, "sets": 1})
-    if per_set is None:
-        return None, f"{label} is not a size listed in the {column.replace('C', ' °C')} column of {table.citation}"
-    sets = conductor.get("sets", 1)
-    line = f"{label}, {column.replace('C', ' °C')} column of {table.citation} = {num(per_set)} A"
-    if sets > 1:
-        line += f"; {sets} parallel sets × {num(per_set)} A = {num(per_set * sets)} A"
-    return float(per_set * sets), line
+    return table_ampacity(conductor, ruleset, column or params["ampacity_column"], params)
 
 
 def termination_columns(conductor: dict, feeder: dict, needed_a: float,
