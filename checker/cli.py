@@ -56,12 +56,12 @@ def build_parser() -> argparse.ArgumentParser:
 
 
 def _cmd_review(args) -> int:
-    from checker.report.build import review_to_dict
-    from checker.report.files import write_atomic, write_atomic_chunks
+    from checker.progress import Progress
+    from checker.report.build import for_writers, review_to_dict
+    from checker.report.files import write_atomic, write_atomic_together
     from checker.report.html_report import iter_html
     from checker.report.json_report import iter_json
     from checker.report.text_summary import summary_text
-    from checker.progress import Progress
     from checker.review import review_schedule
     from checker.rules.common import ReviewOptions
 
@@ -85,10 +85,9 @@ def _cmd_review(args) -> int:
         html_path = args.html or Path("reports") / f"{stem}.html"
         outputs = [json_path, html_path] + ([args.csv] if args.csv else [])
         _refuse_overwriting_input(args.schedule, outputs)
-        progress.stage("writing the JSON report")
-        write_atomic_chunks(json_path, iter_json(report))
-        progress.stage("writing the HTML report")
-        write_atomic_chunks(html_path, iter_html(report))
+        progress.stage("writing the reports")
+        for_json, for_html = for_writers(report, 2)  # each motor's dict is built once for both files
+        write_atomic_together([(json_path, iter_json(for_json)), (html_path, iter_html(for_html))])
         if args.csv:
             from checker.report.csv_report import render_csv
             write_atomic(args.csv, render_csv(report))

@@ -13,7 +13,7 @@ from __future__ import annotations
 
 import sys
 import time
-from typing import TextIO
+from typing import Self, TextIO
 
 __all__ = ["DELAY_S", "Progress"]
 
@@ -60,7 +60,7 @@ class Progress:
             self._write("\r" + " " * self.width + "\r")
             self.width = 0
 
-    def __enter__(self) -> Progress:
+    def __enter__(self) -> Self:
         return self
 
     def __exit__(self, *exc) -> None:

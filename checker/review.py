@@ -88,7 +88,7 @@ class _MotorView:
     """What a check sees while its reads are logged: the logged record, and any other Motor attribute
     (read from the real motor, noted in ``others``)."""
 
-    __slots__ = ("record", "_motor", "others")
+    __slots__ = ("_motor", "others", "record")
 
     def __init__(self, motor: Motor, record: _ReadLog) -> None:
         self.record, self._motor, self.others = record, motor, set()

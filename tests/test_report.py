@@ -276,7 +276,7 @@ def test_html_structure(html, report):
     for status in ("fail", "needs-info", "pass"):
         assert f'body[data-filter="{status}"] .motor:not(.st-{status})' in css
     assert ".motor" not in doc.text_of["script"][0]
-    for text in ("Must be checked against a licensed copy", "NEEDS INFO", "Motors!F5", "section heading",
+    for text in ("Must be checked against a licensed copy", "NEEDS INFO", "Motors!row 5", "[F5 J5]", "section heading",
                  "Rows not reviewed (1)", "no motor headings", "11 A x 2.50 = 27.5 A", "inverse-time breaker assumed",
                  "published: 3", "from memory: 1", "bond-size", "13.75", "schedule.xlsx", "@media print"):
         assert text.lower() in html.lower(), text

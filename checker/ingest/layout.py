@@ -256,14 +256,29 @@ class _Block:
     motor: bool
 
 
+# merged_origins by the identity of a grid's merged ranges (the tuple is kept, so its id stays its
+# own): header searches ask for the same grid's map once per candidate row, and a 100 000-row
+# sheet has ~5 000 merged section rows (~65 000 covered cells).
+_ORIGINS: dict[int, tuple[tuple, dict[tuple[int, int], tuple[int, int]]]] = {}
+
+
 def merged_origins(grid: Grid) -> dict[tuple[int, int], tuple[int, int]]:
-    """(row, col) of every covered cell of a merged range -> its top-left cell."""
+    """(row, col) of every covered cell of a merged range -> its top-left cell.
+
+    The map is built once per grid and shared by every caller: read it, do not change it.
+    """
+    known = _ORIGINS.get(id(grid.merged))
+    if known is not None and known[0] is grid.merged:
+        return known[1]
     out: dict[tuple[int, int], tuple[int, int]] = {}
     for r0, c0, r1, c1 in grid.merged:
         for r in range(r0, r1 + 1):
             for c in range(c0, c1 + 1):
                 if (r, c) != (r0, c0):
                     out[(r, c)] = (r0, c0)
+    if len(_ORIGINS) >= 16:
+        _ORIGINS.clear()
+    _ORIGINS[id(grid.merged)] = (grid.merged, out)
     return out
 
 

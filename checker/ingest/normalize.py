@@ -185,7 +185,13 @@ def record_valid(record: dict) -> bool | None:
         return False
     try:
         for name, value in record.items():
-            key = (name, len(value)) if value.__class__ is str and name in by_length else (name, frozen_value(value))
+            cls = value.__class__
+            if cls is str:
+                key = (name, len(value)) if name in by_length else (name, value)
+            elif cls is dict or cls is list or cls is tuple:
+                key = (name, frozen_value(value))
+            else:  # a number, bool or None: its class keeps 1, 1.0 and True apart
+                key = (name, cls, value)
             valid = _field_validity.get(key)
             if valid is None:
                 valid = one_field.is_valid({name: value})

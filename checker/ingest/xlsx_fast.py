@@ -111,7 +111,7 @@ def _plain_support_parts(archive: zipfile.ZipFile, members: set[str]) -> bool:
 class _Scan:
     """What one sheet's XML says beyond calamine's values; rows and columns 1-based."""
 
-    __slots__ = ("cells", "hidden_rows", "errors", "formulas_without_value", "max_row", "max_col")
+    __slots__ = ("cells", "errors", "formulas_without_value", "hidden_rows", "max_col", "max_row")
 
     def __init__(self) -> None:
         self.cells = 0

@@ -7,10 +7,11 @@ order. The JSON emitter writes it as is; the HTML and text emitters only read it
 from __future__ import annotations
 
 import math
-from functools import lru_cache
 from collections.abc import Iterable, Iterator, Mapping, Sequence
 from datetime import date, datetime, time
 from enum import Enum
+from functools import lru_cache
+from itertools import tee
 from pathlib import PurePath, PurePosixPath, PureWindowsPath
 from typing import Any
 
@@ -240,6 +241,31 @@ class MotorDicts(Sequence):
             motor_statuses.append(worst_status(statuses))
             finding_statuses.extend(statuses)
         return motor_statuses, finding_statuses
+
+
+class _MotorDictsBranch(MotorDicts):
+    """One reader's turn at a pass over the motors shared by several readers (see
+    :func:`for_writers`); iterate it once."""
+
+    def __init__(self, source: MotorDicts, items: Iterator[dict[str, Any]]) -> None:
+        super().__init__(source._reviews, source._shared)
+        self._items = items
+
+    def __iter__(self) -> Iterator[dict[str, Any]]:
+        return self._items
+
+
+def for_writers(report: dict[str, Any], count: int) -> list[dict[str, Any]]:
+    """``count`` views of a lazy report whose motors are built once for all of them.
+
+    Each view is read once, by its own writer; the writers must advance together (see
+    ``files.write_atomic_together``), as motors one has read and another has not are kept.
+    A report with a list of motors is simply repeated.
+    """
+    motors = report.get("motors")
+    if not isinstance(motors, MotorDicts):
+        return [report] * count
+    return [{**report, "motors": _MotorDictsBranch(motors, branch)} for branch in tee(iter(motors), count)]
 
 
 def skipped_dict(row: model.SkippedRow) -> dict[str, Any]:

@@ -26,28 +26,57 @@ def write_atomic(path: Path, text: str) -> None:
 def write_atomic_chunks(path: Path, chunks: Iterable[str]) -> None:
     """:func:`write_atomic` for text given in pieces, written as they come (a 100 000-motor
     report is never held whole in memory). ``path`` changes only once every piece is written."""
-    path = Path(path)
-    path.parent.mkdir(parents=True, exist_ok=True)
+    write_atomic_together([(path, chunks)])
+
+
+_DONE = object()
+
+
+def write_atomic_together(targets: list[tuple[Path, Iterable[str]]]) -> None:
+    """Write several files from their pieces, taking one piece of each in turn.
+
+    Turn by turn, producers that read the same sequence (the report's motors, built one at a
+    time) stay a few items apart, so each item is built once and dropped soon. Every file is
+    written to a temporary file first and renamed over its path only when all are complete;
+    on an error none is replaced and the temporary files are removed.
+    """
+    opened = []
     try:
-        mode = stat.S_IMODE(path.stat().st_mode)
-    except FileNotFoundError:
-        mode = NEW_FILE_MODE
-    handle, temp_name = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
-    try:
-        with os.fdopen(handle, "w", encoding="utf-8", newline="", buffering=1 << 20) as stream:
-            for chunk in chunks:
-                stream.write(chunk)
+        for path, chunks in targets:
+            path = Path(path)
+            path.parent.mkdir(parents=True, exist_ok=True)
+            try:
+                mode = stat.S_IMODE(path.stat().st_mode)
+            except FileNotFoundError:
+                mode = NEW_FILE_MODE
+            handle, temp_name = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
+            stream = os.fdopen(handle, "w", encoding="utf-8", newline="", buffering=1 << 20)
+            opened.append((path, mode, temp_name, stream, iter(chunks)))
+        active = list(opened)
+        while active:
+            for item in list(active):
+                chunk = next(item[4], _DONE)
+                if chunk is _DONE:
+                    active.remove(item)
+                else:
+                    item[3].write(chunk)
+        for _, _, _, stream, _ in opened:
             stream.flush()
             os.fsync(stream.fileno())
-        os.chmod(temp_name, mode)
-        os.replace(temp_name, path)
+            stream.close()
+        for path, mode, temp_name, _, _ in opened:
+            os.chmod(temp_name, mode)
+            os.replace(temp_name, path)
     except BaseException:
-        try:
-            os.unlink(temp_name)
-        except FileNotFoundError:
-            pass
+        for _, _, temp_name, stream, _ in opened:
+            stream.close()
+            try:
+                os.unlink(temp_name)
+            except FileNotFoundError:
+                pass
         raise
-    _sync_directory(path.parent)
+    for directory in dict.fromkeys(path.parent for path, *_ in opened):
+        _sync_directory(directory)
 
 
 def _sync_directory(directory: Path) -> None:

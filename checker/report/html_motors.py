@@ -10,15 +10,15 @@ many motors share a finding because a review reuses a check's result for
 motors with equal values (``FindingEntry.shared`` in ``build.py``). A failed
 finding also shows its working inline, where the reviewer needs it.
 
-Every value from the report is escaped with markupsafe, as Jinja's autoescape
-would; nothing submitted is trusted.
+Every value from the report is escaped the way markupsafe (Jinja's autoescape)
+escapes it; nothing submitted is trusted.
 """
 from __future__ import annotations
 
 from collections.abc import Iterable, Iterator, Mapping
 from typing import Any
 
-from markupsafe import Markup, escape
+from markupsafe import Markup
 
 # Worst first; the labels shown for each status.
 STATUS_LABELS = {"fail": "FAIL", "needs-info": "NEEDS INFO", "pass": "PASS"}
@@ -43,8 +43,15 @@ def format_number(value: Any) -> str:
     return str(value)
 
 
+_ESCAPES = str.maketrans({"&": "&amp;", "<": "&lt;", ">": "&gt;", '"': "&#34;", "'": "&#39;"})
+
+
 def _e(value: Any) -> str:
-    return str(escape("" if value is None else value))
+    """``value`` as HTML text, escaped as markupsafe escapes it (most cells need nothing: checked first)."""
+    text = value if value.__class__ is str else ("" if value is None else str(value))
+    if "&" in text or "<" in text or ">" in text or '"' in text or "'" in text:
+        return text.translate(_ESCAPES)
+    return text
 
 
 def _status(value: Any) -> tuple[str, str]:
@@ -117,9 +124,16 @@ def _same(finding: Mapping[str, Any], part: Mapping[str, Any]) -> bool:
     return all(finding.get(key, finding) is value for key, value in part.items())
 
 
-def _cells_text(finding: Mapping[str, Any]) -> str:
-    labels = list(dict.fromkeys(str(cell.get("label", "")) for cell in finding.get("cells") or []
-                                if isinstance(cell, Mapping)))
+def _cells_text(finding: Mapping[str, Any], sheet_prefix: str) -> str:
+    """' [D19 J19]': the cells a finding read, without the sheet name when it is the motor's own."""
+    labels = []
+    for cell in finding.get("cells") or []:
+        if isinstance(cell, Mapping):
+            label = str(cell.get("label", ""))
+            if sheet_prefix and label.startswith(sheet_prefix):
+                label = label[len(sheet_prefix):]
+            if label not in labels:
+                labels.append(label)
     return f" [{_e(' '.join(labels))}]" if labels else ""
 
 
@@ -167,6 +181,8 @@ def _motor_block(motor: Mapping[str, Any], index: int, catalogue: _Catalogue) ->
     record = motor.get("record") if isinstance(motor.get("record"), Mapping) else {}
     source = motor.get("source") if isinstance(motor.get("source"), Mapping) else {}
     description = record.get("description")
+    sheet = source.get("sheet")
+    sheet_prefix = f"{sheet}!" if sheet and source.get("page") is None else ""
     out = [f'<details class="motor st-{status}" id="motor-{index}"{"" if motor.get("status") == "pass" else " open"}>'
            f'<summary><span class="badge st-{status}">{label}</span> <span class="tag">{_e(motor.get("tag"))}</span>'
            + (f' <span class="desc">{_e(description)}</span>' if description else "")
@@ -177,7 +193,7 @@ def _motor_block(motor: Mapping[str, Any], index: int, catalogue: _Catalogue) ->
         for finding in findings:
             number = catalogue.number(finding)
             out.append(catalogue.heads[number - 1])
-            out.append(_cells_text(finding))
+            out.append(_cells_text(finding, sheet_prefix))
             if finding.get("status") == "fail":
                 out.append(f'<div class="wk">{working_html(finding)}</div>')
             out.append("</li>\n")

@@ -1,0 +1,242 @@
+"""The speed-ups change how a review is computed and written, never what it says.
+
+* checks reused across motors with equal values (``review._CheckMemo``) give the same review as
+  running every check on every motor;
+* the cached per-field schema check (``normalize.record_valid``) agrees with the JSON-schema
+  validator on any record;
+* the lazily built report (``review_to_dict(..., lazy=True)``) and the streamed JSON and HTML are
+  the same as the eager report and its one-piece renderings;
+* the progress line appears only on a terminal, after its delay, and is erased.
+
+All schedules here are invented (the demo, the test fixtures and the benchmark generator).
+"""
+from __future__ import annotations
+
+import importlib.util
+import io
+import json
+import math
+import sys
+from pathlib import Path
+
+import fixture_builders as fb
+import pytest
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
+from jsonschema import Draft202012Validator
+
+from checker import review as review_module
+from checker.ingest import normalize
+from checker.model import Finding, Motor, SourceRef, Status
+from checker.progress import Progress
+from checker.report.build import MotorDicts, review_to_dict
+from checker.report.html_report import iter_html, render_html
+from checker.report.json_report import dumps, iter_json
+from checker.report.text_summary import summary_text
+from checker.review import _CheckMemo, review_schedule
+from checker.rules import registry
+
+ROOT = Path(__file__).resolve().parents[1]
+DEMO = ROOT / "fixtures" / "demo"
+
+
+def _bench_schedule_csv(tmp_path: Path, motors: int) -> Path:
+    spec = importlib.util.spec_from_file_location("bench_generate", ROOT / "tests" / "bench" / "generate.py")
+    generate = importlib.util.module_from_spec(spec)
+    sys.modules[spec.name] = generate
+    spec.loader.exec_module(generate)
+    return generate.write_schedule_csv(tmp_path / "bench.csv", generate.build_schedule(motors))
+
+
+@pytest.fixture(params=["demo-xlsx", "demo-csv", "messy-xlsx", "bench-csv"])
+def schedule(request, tmp_path) -> Path:
+    if request.param == "demo-xlsx":
+        return DEMO / "northfield-pump-station.xlsx"
+    if request.param == "demo-csv":
+        return DEMO / "northfield-pump-station.csv"
+    if request.param == "messy-xlsx":
+        return fb.write_messy_xlsx(tmp_path / "messy.xlsx")
+    return _bench_schedule_csv(tmp_path, 150)
+
+
+# --------------------------------------------------------------------------- reused check results
+
+def test_reused_check_results_give_the_same_review(schedule, monkeypatch):
+    memoized = review_to_dict(review_schedule(schedule), "t")
+    run = _CheckMemo.run
+
+    def every_check_on_every_motor(self, motor, check_ids):
+        self.all_direct = True
+        return run(self, motor, check_ids)
+
+    monkeypatch.setattr(_CheckMemo, "run", every_check_on_every_motor)
+    assert review_to_dict(review_schedule(schedule), "t") == memoized
+
+
+def _motor(tag: str, **record) -> Motor:
+    return Motor(tag=tag, record={"tag": tag, **record}, source=SourceRef("s.csv", 2))
+
+
+def _memo_with(monkeypatch, function) -> _CheckMemo:
+    monkeypatch.setitem(registry.CHECKS, "probe", registry.CheckEntry(function, ()))
+    monkeypatch.setattr(review_module, "CHECKS", registry.CHECKS)
+    return _CheckMemo(ruleset=None, options=None)
+
+
+def test_equal_values_share_one_run(monkeypatch):
+    calls = []
+
+    def probe(motor, ruleset, options):
+        calls.append(motor.record["hp"])
+        return [Finding("probe", "r", Status.PASS, f"{motor.record['hp']} hp")]
+
+    memo = _memo_with(monkeypatch, probe)
+    first = memo.run(_motor("A", hp=5.0, fla_a=7.6), ["probe"])
+    second = memo.run(_motor("B", hp=5.0, fla_a=9.9), ["probe"])  # fla_a is not read by the check
+    third = memo.run(_motor("C", hp=5, fla_a=7.6), ["probe"])     # int 5 is not float 5.0
+    assert calls == [5.0, 5] and first[0] is second[0] and third[0].message == "5 hp"
+
+
+def test_a_check_reading_the_tag_is_run_for_every_motor(monkeypatch):
+    memo = _memo_with(monkeypatch, lambda motor, r, o: [Finding("probe", "r", Status.PASS, motor.tag)])
+    messages = [memo.run(_motor(tag, hp=5.0), ["probe"])[0].message for tag in ("A", "B", "C")]
+    assert messages == ["A", "B", "C"] and "probe" in memo.direct
+
+
+def test_a_check_reading_every_field_is_run_for_every_motor(monkeypatch):
+    memo = _memo_with(monkeypatch, lambda motor, r, o: [Finding("probe", "r", Status.PASS, str(sorted(motor.record)))])
+    first = memo.run(_motor("A", hp=5.0), ["probe"])
+    second = memo.run(_motor("B", hp=5.0, kw=3.7), ["probe"])
+    assert first[0].message != second[0].message
+
+
+def test_a_check_writing_the_record_stops_all_reuse_and_keeps_its_write(monkeypatch):
+    def writer(motor, ruleset, options):
+        motor.record["noted"] = True
+        return []
+
+    memo = _memo_with(monkeypatch, writer)
+    motor = _motor("A", hp=5.0)
+    memo.run(motor, ["probe"])
+    assert motor.record["noted"] is True and memo.all_direct
+
+
+# --------------------------------------------------------------------------- schema check by field
+
+_SCHEMA = json.loads(normalize.SCHEMA_PATH.read_text(encoding="utf-8"))
+_FIELDS = [*_SCHEMA["properties"], "not_a_field"]
+_scalars = st.one_of(st.none(), st.booleans(), st.integers(-5, 30_000), st.sampled_from([1.0, 3.0, 60.0, 0.0, -2.5]),
+                     st.floats(allow_nan=True, allow_infinity=True), st.text(max_size=3),
+                     st.sampled_from(["", "x" * 201, "cu", "al", "continuous", "5-min", "4/0", "250", "19", "ac"]))
+_values = st.recursive(_scalars, lambda inner: st.one_of(
+    st.lists(inner, max_size=3),
+    st.dictionaries(st.sampled_from(["size", "sets", "material", "service", "rating", "rating_a", "device", "kind",
+                                     "means", "allows", "poles", "extra"]), inner, max_size=4)), max_leaves=6)
+
+
+@settings(max_examples=300, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(st.dictionaries(st.sampled_from(_FIELDS), _values, max_size=6))
+def test_field_by_field_check_agrees_with_the_validator(record):
+    expected = Draft202012Validator(_SCHEMA).is_valid(record)
+    got = normalize.record_valid(record)
+    assert got is None or got == expected, record
+
+
+def test_field_by_field_check_on_the_demo_records():
+    validator = Draft202012Validator(_SCHEMA)
+    for entry in review_schedule(DEMO / "northfield-pump-station.xlsx").motors:
+        assert normalize.record_valid(entry.motor.record) == validator.is_valid(entry.motor.record)
+
+
+# --------------------------------------------------------------------------- lazy report, streamed files
+
+def test_lazy_report_and_streams_equal_the_eager_ones(schedule):
+    review = review_schedule(schedule)
+    eager = review_to_dict(review, "t")
+    lazy = review_to_dict(review, "t", lazy=True)
+    assert isinstance(lazy["motors"], MotorDicts) and len(lazy["motors"]) == len(eager["motors"])
+    assert {k: v for k, v in lazy.items() if k != "motors"} == {k: v for k, v in eager.items() if k != "motors"}
+    assert list(lazy["motors"]) == eager["motors"] and lazy["motors"][-1] == eager["motors"][-1]
+    text = dumps(eager)
+    assert "".join(iter_json(lazy)) == text and json.loads(text) == eager
+    assert "".join(iter_html(lazy)) == render_html(eager)
+    for lines in (0, 5, 40):
+        assert summary_text(lazy, max_lines=lines) == summary_text(eager, max_lines=lines)
+
+
+def test_json_shows_a_finding_changed_after_the_report_was_built():
+    report = review_to_dict(review_schedule(DEMO / "northfield-pump-station.xlsx"), "t")
+    report["motors"][0]["findings"][0]["message"] = "changed by a caller"
+    assert json.loads(dumps(report)) == report
+
+
+def test_json_has_one_motor_per_line():
+    report = review_to_dict(review_schedule(DEMO / "northfield-pump-station.csv"), "t")
+    lines = dumps(report).splitlines()
+    motor_lines = [line for line in lines if line.startswith('    {"tag":')]
+    assert len(motor_lines) == len(report["motors"])
+    assert [json.loads(line.rstrip(","))["tag"] for line in motor_lines] == [m["tag"] for m in report["motors"]]
+
+
+def test_html_page_is_small_per_motor(tmp_path):
+    """Each motor is a few hundred bytes plus its findings' one-line entries."""
+    review = review_schedule(_bench_schedule_csv(tmp_path, 300))
+    page = render_html(review_to_dict(review, "t"))
+    start, end = page.index('<section id="motors"'), page.index('<section id="findings-in-full"')
+    assert (end - start) / len(review.motors) < 2048
+    findings = sum(len(m.findings) + len(m.motor.input_findings) for m in review.motors)
+    assert 3 * page.count('id="w-') < findings  # each distinct finding written in full once
+
+
+# --------------------------------------------------------------------------- progress line
+
+class _Terminal(io.StringIO):
+    def isatty(self) -> bool:
+        return True
+
+
+def test_progress_is_silent_off_a_terminal():
+    stream = io.StringIO()
+    with Progress(stream, delay_s=0) as progress:
+        progress.stage("reading")
+        progress.step(5, 10)
+    assert stream.getvalue() == ""
+
+
+def test_progress_waits_for_its_delay():
+    stream = _Terminal()
+    with Progress(stream, delay_s=60) as progress:
+        progress.stage("reading")
+        progress.step(5, 10)
+    assert stream.getvalue() == ""
+
+
+def test_progress_draws_counts_and_erases_itself():
+    stream = _Terminal()
+    progress = Progress(stream, delay_s=0)
+    progress.stage("checking motors")
+    progress.next_draw = 0  # as if the throttle interval had passed
+    progress.step(2_500, 10_000)
+    shown = stream.getvalue()
+    assert "checking motors 2,500/10,000 (25 %)" in shown and "\n" not in shown
+    for number in range(10_000):  # throttled: not redrawn on every call
+        progress.step(number, 10_000)
+    assert stream.getvalue().count("\r") <= 3
+    progress.close()
+    assert stream.getvalue().endswith("\r") and stream.getvalue().rsplit("\r", 2)[-2].strip() == ""
+
+
+def test_cli_prints_no_progress_when_not_on_a_terminal(tmp_path, capsys):
+    from checker.cli import main
+
+    main(["review", str(DEMO / "northfield-pump-station.csv"), "--json", str(tmp_path / "r.json"),
+          "--html", str(tmp_path / "r.html"), "--quiet"])
+    assert capsys.readouterr().err == ""
+
+
+def test_nan_free_numbers_in_json():
+    report = review_to_dict(review_schedule(DEMO / "northfield-pump-station.xlsx"), "t")
+    for motor in report["motors"]:
+        for finding in motor["findings"]:
+            for key in ("limit", "provided"):
+                assert finding[key] is None or math.isfinite(finding[key])
