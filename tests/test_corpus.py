@@ -456,7 +456,7 @@ def test_formulas_without_value_are_marked_by_both_xlsx_paths():
 
 def test_csv_row_limit_is_checked_while_reading():
     text = "Tag,HP\n" + "R-1,1\n" * (readers.MAX_SHEET_ROWS + 5)
-    with pytest.raises(readers.InputError, match=r"rows up to 100,001, more than the 100,000 rows"):
+    with pytest.raises(readers.InputError, match=r"rows up to 150,001, more than the 150,000 rows"):
         readers._csv_records(text, ",", "rows.csv")
 
 

@@ -248,8 +248,33 @@ def _input_finding(message: str, target: str | None) -> Finding:
     return Finding(INPUT_CHECK, INPUT_RULE, Status.NEEDS_INFO, message, fields=(target,) if target else ())
 
 
-def read_motor(table: LocatedTable, row_index: int, section: tuple[str, SourceRef] | None) -> Motor:
-    """Build and validate one motor record from a data row."""
+def _read_cell(reader, col, text: str) -> tuple[Parsed, str | None]:
+    """(parsed value, record field) of one non-empty cell: the same for every row of the column."""
+    parsed = reader.parser(values.with_header_hint(col.field, text, col.header))  # 'LENGTH (FT)', 'MAX FUSE'
+    target = reader.target
+    if parsed.problem and col.field in _OTHER_POWER_UNIT and \
+            _POWER_UNIT_WORD[_OTHER_POWER_UNIT[col.field][0]].search(text):
+        other_field, other_parser = _OTHER_POWER_UNIT[col.field]
+        other = other_parser(text)
+        if other.value is not None and not other.problem:
+            parsed, target = other, other_field  # the unit written in the cell wins
+    return parsed, target
+
+
+def _own(value: Any) -> Any:
+    """A row's own copy of a remembered value (records are amended later; the remembered one never is)."""
+    if value.__class__ is not dict:
+        return value
+    return {k: (list(v) if isinstance(v, list) else v) for k, v in value.items()}
+
+
+def read_motor(table: LocatedTable, row_index: int, section: tuple[str, SourceRef] | None,
+               cell_cache: dict | None = None) -> Motor:
+    """Build and validate one motor record from a data row.
+
+    ``cell_cache`` (one dict per table) remembers what each distinct cell text of a column reads
+    as, so a text repeated down a column is parsed once.
+    """
     grid = table.grid
     row_number = grid.row_numbers[row_index]
     cells = grid.rows[row_index]
@@ -283,14 +308,15 @@ def read_motor(table: LocatedTable, row_index: int, section: tuple[str, SourceRe
                 f"Cell {source.label()} ({col.header}) holds a date or time '{text}' where a number belongs; the "
                 f"cell is probably formatted as a date - check the value and resubmit", reader.target or col.field))
             continue
-        parsed = reader.parser(values.with_header_hint(col.field, text, col.header))  # 'LENGTH (FT)', 'MAX FUSE'
-        target = reader.target
-        if parsed.problem and col.field in _OTHER_POWER_UNIT and \
-                _POWER_UNIT_WORD[_OTHER_POWER_UNIT[col.field][0]].search(text):
-            other_field, other_parser = _OTHER_POWER_UNIT[col.field]
-            other = other_parser(text)
-            if other.value is not None and not other.problem:
-                parsed, target = other, other_field  # the unit written in the cell wins
+        if cell_cache is None:
+            parsed, target = _read_cell(reader, col, text)
+        else:
+            outcome = cell_cache.get((col.index, text))
+            if outcome is None:
+                if len(cell_cache) >= _MAX_REMEMBERED:
+                    cell_cache.clear()
+                outcome = cell_cache[(col.index, text)] = _read_cell(reader, col, text)
+            parsed, target = outcome
         if parsed.problem:
             findings.append(_input_finding(
                 f"Cell {source.label()} ({col.header}) '{_short(text)}' could not be read: {parsed.problem}",
@@ -304,11 +330,11 @@ def read_motor(table: LocatedTable, row_index: int, section: tuple[str, SourceRe
         if parsed.value is None:
             continue
         if reader.merge:
-            for key, value in parsed.value.items():
+            for key, value in _own(parsed.value).items():
                 record.setdefault(key, value)
                 sources.setdefault(key, source)
         else:
-            record[target] = parsed.value
+            record[target] = _own(parsed.value)
             sources[target] = source
     _attach_conductor_extras(table, cells, row_source, record, sources, findings)
     if "fed_from" not in record and section is not None:
@@ -375,6 +401,7 @@ def normalize_table(table: LocatedTable) -> TableResult:
     header_texts = {col.field: col.header.split(" / ")[-1] for col in table.columns}
     section: tuple[str, SourceRef] | None = None
     formula_rows = {r for r, _ in grid.formula_cells}
+    cell_cache: dict = {}
     for index in range(table.data_first, table.data_last + 1):
         cells = grid.rows[index]
         row_number = grid.row_numbers[index]
@@ -385,7 +412,7 @@ def normalize_table(table: LocatedTable) -> TableResult:
         cells = grid.rows[index]
         source = grid.source(index)
         if reason is None:
-            result.motors.append(read_motor(table, index, section))
+            result.motors.append(read_motor(table, index, section, cell_cache))
             if row_number in grid.hidden_rows:
                 result.hidden_motor_rows.append(row_number)
             continue

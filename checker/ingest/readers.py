@@ -110,7 +110,8 @@ MAX_UNZIPPED_BYTES = 100 * 2**20    # sum of the archive members' unpacked sizes
 MAX_ZIP_RATIO = 100                 # unpacked/packed size of one member (deflate tops out near 1,030)
 ZIP_RATIO_FLOOR_BYTES = 2**20       # members smaller than this unpacked are not ratio-checked
 MAX_STORED_CELLS = 500_000          # <c> elements over all worksheets of an xlsx
-MAX_SHEET_ROWS = 100_000            # last used row of a sheet (or records of a CSV)
+MAX_SHEET_ROWS = 150_000            # last used row of a sheet (or records of a CSV): a 100,000-motor schedule
+                                    # with its section and title rows (~113,000 rows) fits
 MAX_GRID_CELLS = 2_000_000          # rows x columns of one sheet's text grid
 CSV_FIELD_CHARS = 131_072           # longest CSV cell (the csv module's default limit, kept explicit)
 # python-calamine reads these workbook formats (content decides, see sniff_kind).

@@ -59,9 +59,11 @@ def plain(value: Any) -> Any:
     cls = value.__class__  # the exact built-in types first: records are made of them
     if cls is str or cls is int or cls is bool or value is None:
         return value
+    if cls is float:
+        return value if math.isfinite(value) else None
     if cls is dict:
         return {(key if key.__class__ is str else str(key)): plain(item) for key, item in value.items()}
-    if cls is list:
+    if cls is list or cls is tuple:
         return [plain(item) for item in value]
     if value is None or isinstance(value, (bool, int, str)):
         return value

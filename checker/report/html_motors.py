@@ -121,14 +121,18 @@ class _Catalogue:
 
 def _same(finding: Mapping[str, Any], part: Mapping[str, Any]) -> bool:
     """The finding still carries every value of its shared part (nothing changed it since)."""
-    return all(finding.get(key, finding) is value for key, value in part.items())
+    get = finding.get
+    for key, value in part.items():
+        if get(key, finding) is not value:
+            return False
+    return True
 
 
 def _cells_text(finding: Mapping[str, Any], sheet_prefix: str) -> str:
     """' [D19 J19]': the cells a finding read, without the sheet name when it is the motor's own."""
     labels = []
     for cell in finding.get("cells") or []:
-        if isinstance(cell, Mapping):
+        if cell.__class__ is dict or isinstance(cell, Mapping):
             label = str(cell.get("label", ""))
             if sheet_prefix and label.startswith(sheet_prefix):
                 label = label[len(sheet_prefix):]

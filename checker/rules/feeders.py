@@ -33,15 +33,18 @@ disagrees with the branch check about what a motor is permitted).
 from __future__ import annotations
 
 from collections.abc import Callable, Mapping
+from contextvars import ContextVar
 from dataclasses import dataclass
 
 from checker.ingest.feeders import FeederRow, group_key
+from checker.ingest.normalize import frozen_value
 from checker.model import FeederReview, Finding, Motor, SourceRef, Status
 from checker.rules.common import ReviewOptions, calc, conductor_label, num
 from checker.rules.conductors import table_ampacity
 from checker.rules.current import CurrentBasis, current_basis
 from checker.rules.overcurrent import (
     DEVICE_NAMES,
+    BranchLimits,
     branch_limits,
     device_columns,
     largest_not_above,
@@ -345,6 +348,124 @@ class BranchValue:
     problem: str | None
 
 
+class _Reads(dict):
+    """A copy of a record that notes the fields read; looking at the whole record or writing sets ``whole``."""
+
+    __slots__ = ("read", "whole")
+
+    def __init__(self, record: dict) -> None:
+        super().__init__(record)
+        self.read: set = set()
+        self.whole = False
+
+    def __getitem__(self, key):
+        self.read.add(key)
+        return dict.__getitem__(self, key)
+
+    def get(self, key, default=None):
+        self.read.add(key)
+        return dict.get(self, key, default)
+
+    def __contains__(self, key):
+        self.read.add(key)
+        return dict.__contains__(self, key)
+
+
+def _whole(method: str):
+    def call(self, *args, **kwargs):
+        self.whole = True
+        return getattr(dict, method)(self, *args, **kwargs)
+    call.__name__ = method
+    return call
+
+
+for _method in ("__iter__", "__len__", "__repr__", "__eq__", "__ne__", "__reversed__", "__or__", "__ror__", "keys",
+                "values", "items", "copy", "__reduce__", "__reduce_ex__", "__setitem__", "__delitem__", "__ior__",
+                "pop", "popitem", "setdefault", "update", "clear"):
+    setattr(_Reads, _method, _whole(_method))
+del _method
+
+_ABSENT = object()
+
+
+class _LimitsMemo:
+    """``branch_limits`` for one review's ruleset and options, computed once per distinct reading.
+
+    ``branch_limits`` is a pure function of the record fields it reads, so a record that agrees, value
+    for value, on every field read so far takes the same path and gets the same (frozen) result; a
+    facility schedule of 100 000 motors has a few dozen such readings per device column. A call that
+    looks at the whole record ends the memo (every later call is computed directly).
+    """
+
+    def __init__(self, ruleset: Ruleset, options: ReviewOptions) -> None:
+        self.ruleset, self.options = ruleset, options
+        self.fields: tuple = ()  # fields read so far, but "ocpd" (its value is set by the column)
+        self.found: dict = {}
+        self.parts: dict = {}    # (column, fla missing, id(limits)) -> (limits, _parts(...))
+        self.direct = False
+
+    def _key(self, record: dict, column: str) -> tuple:
+        return column, *[frozen_value(record.get(field, _ABSENT)) for field in self.fields]
+
+    def __call__(self, motor_record: dict, column: str) -> BranchLimits:
+        if self.direct:
+            return branch_limits(_with_device(motor_record, column), self.ruleset, self.options)
+        try:
+            key = self._key(motor_record, column)
+            hit = self.found.get(key)
+        except TypeError:  # an unhashable value: compute it directly
+            key = hit = None
+        if hit is not None:
+            return hit
+        log = _Reads(_with_device(motor_record, column))
+        result = branch_limits(log, self.ruleset, self.options)
+        if log.whole:
+            self.direct = True
+        if log.whole or key is None:
+            return result
+        read = log.read - {"ocpd"}
+        if not read <= set(self.fields):
+            self.fields = tuple(sorted(set(self.fields) | read, key=str))
+            self.found.clear()
+            key = self._key(motor_record, column)
+        self.found[key] = result
+        return result
+
+
+def _with_device(record: dict, column: str) -> dict:
+    """The motor's record with a device of the feeder's type in place of its own (rating immaterial)."""
+    return {**record, "ocpd": {"rating_a": 1.0, "device": column}}
+
+
+# The memo of the review_feeders call in progress (None outside one: computed directly).
+_LIMITS_MEMO: ContextVar[_LimitsMemo | None] = ContextVar("feeder_branch_limits", default=None)
+
+
+def _memo(ruleset: Ruleset, options: ReviewOptions) -> _LimitsMemo | None:
+    memo = _LIMITS_MEMO.get()
+    return memo if memo is not None and memo.ruleset is ruleset and memo.options == options else None
+
+
+def _parts(limits: BranchLimits, column: str, fla_missing: bool) -> tuple:
+    """What ``branch_value`` says for these limits, but the motor's tag: (current, value, problem,
+    assumptions, table-FLC note, row uncertain, line after the tag)."""
+    current_a = limits.basis.current_a
+    if current_a is None:
+        return None, None, limits.problem or limits.basis.problem, (), None, False, ""
+    assumptions = tuple(a for a in limits.assumptions if a not in limits.basis.assumptions)
+    flc_note = (f": no nameplate FLA; {num(current_a)} A table FLC used."
+                if limits.basis.basis == "table" and fla_missing else None)
+    readings = [c for c in limits.candidates if c.column == column]
+    if limits.problem or not readings:
+        return (current_a, None, limits.problem or f"no {DEVICE_NAMES[column]} percentage for it", assumptions,
+                flc_note, False, "")
+    best = min(readings, key=lambda c: c.permitted_a)  # rows the schedule cannot tell apart: the stricter
+    uncertain = len({c.permitted_a for c in readings}) > 1
+    line = (f": {num(current_a)} A × {num(best.percent)} % ({best.row.replace('-', ' ')}) = "
+            f"{calc(best.limit_a)} A{best.permitted_note}")
+    return current_a, best.permitted_a, None, assumptions, flc_note, uncertain, line
+
+
 def branch_value(motor: Motor, column: str, ruleset: Ruleset, options: ReviewOptions) -> BranchValue:
     """The largest branch device the motor is permitted for a device of ``column``'s type.
 
@@ -355,24 +476,26 @@ def branch_value(motor: Motor, column: str, ruleset: Ruleset, options: ReviewOpt
     """
     if BRANCH_CHECK not in ruleset.checks:
         return BranchValue(None, None, "", (), f"the ruleset has no {BRANCH_CHECK} check to size branch devices")
-    record = {**motor.record, "ocpd": {"rating_a": 1.0, "device": column}}
-    limits = branch_limits(record, ruleset, options)
-    current_a = limits.basis.current_a
+    memo = _memo(ruleset, options)
+    fla_missing = motor.record.get("fla_a") is None
+    if memo is None:
+        parts = _parts(branch_limits(_with_device(motor.record, column), ruleset, options), column, fla_missing)
+    else:  # a few dozen distinct readings in a facility schedule: worked out once each
+        limits = memo(motor.record, column)
+        known = memo.parts.get((column, fla_missing, id(limits)))
+        if known is None or known[0] is not limits:
+            known = memo.parts[(column, fla_missing, id(limits))] = (limits, _parts(limits, column, fla_missing))
+        parts = known[1]
+    current_a, value_a, problem, assumptions, flc_note, uncertain, line = parts
     if current_a is None:
-        return BranchValue(None, None, "", (), limits.problem or limits.basis.problem)
-    assumptions = tuple(a for a in limits.assumptions if a not in limits.basis.assumptions)
-    if limits.basis.basis == "table" and motor.record.get("fla_a") is None:
-        assumptions += (f"{motor.tag}: no nameplate FLA; {num(current_a)} A table FLC used.",)
-    readings = [c for c in limits.candidates if c.column == column]
-    if limits.problem or not readings:
-        return BranchValue(current_a, None, "", assumptions,
-                           limits.problem or f"no {DEVICE_NAMES[column]} percentage for it")
-    best = min(readings, key=lambda c: c.permitted_a)  # rows the schedule cannot tell apart: the stricter
-    if len({c.permitted_a for c in readings}) > 1:
+        return BranchValue(None, None, "", (), problem)
+    if flc_note is not None:
+        assumptions += (f"{motor.tag}{flc_note}",)
+    if value_a is None:
+        return BranchValue(current_a, None, "", assumptions, problem)
+    if uncertain:
         assumptions += (f"{motor.tag}: the table row is not certain; the lower branch value is used.",)
-    line = (f"{motor.tag}: {num(current_a)} A × {num(best.percent)} % ({best.row.replace('-', ' ')}) = "
-            f"{calc(best.limit_a)} A{best.permitted_note}")
-    return BranchValue(current_a, best.permitted_a, line, assumptions, None)
+    return BranchValue(current_a, value_a, f"{motor.tag}{line}", assumptions, None)
 
 
 def maximum_device(motors: list[Motor], device: str | None, ruleset: Ruleset,
@@ -593,6 +716,15 @@ def review_feeders(motors: list[Motor], feeder_rows: list[FeederRow], ruleset: R
     names the group's source. Groups come in the order their first motor
     appears; feeders that supply no motor on the schedule come last.
     """
+    token = _LIMITS_MEMO.set(_LimitsMemo(ruleset, options))
+    try:
+        return _review_groups(motors, feeder_rows, ruleset, options, checks)
+    finally:
+        _LIMITS_MEMO.reset(token)
+
+
+def _review_groups(motors: list[Motor], feeder_rows: list[FeederRow], ruleset: Ruleset, options: ReviewOptions,
+                   checks: Mapping[str, GroupCheckFn]) -> tuple[FeederReview, ...]:
     groups = group_motors(motors)
     by_group: dict[str, list[FeederRow]] = {}
     unmatched: list[FeederRow] = []

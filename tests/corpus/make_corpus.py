@@ -439,8 +439,8 @@ def build(directory: Path) -> list[Case]:
         external_entity())
     add(Case("entity-expansion-ods", "laughs.ods", "billion-laughs DTD in an OpenDocument content.xml", "either",
              bomb=True), B.ods([("Motors", schedule(["&lol9;"]))], LAUGHS).replace(b"&amp;lol9;", b"&lol9;"))
-    many_rows = b"Tag,HP\r\n" + b"".join(b"R-%d,1\r\n" % i for i in range(100_001))
-    add(Case("csv-too-many-rows", "rows.csv", "100,002 records", "refuse", r"rows up to|100,000", bomb=True), many_rows)
+    many_rows = b"Tag,HP\r\n" + b"".join(b"R-%d,1\r\n" % i for i in range(150_001))
+    add(Case("csv-too-many-rows", "rows.csv", "150,002 records", "refuse", r"rows up to|150,000", bomb=True), many_rows)
     gap = csv_bytes(schedule()) + b"\r\n" * 5_000 + b"End of schedule\r\n"
     add(Case("csv-blank-gap", "gap.csv", "5,000 blank lines before a last note", "review",
              expect=[{"motors": 3}, {"skipped": {"row": n_base + 5_001, "reason": r"note|outside|section"}}],
