@@ -13,8 +13,15 @@ from collections.abc import Callable
 from operator import itemgetter
 from pathlib import Path
 
-from checker.ingest.feeders import (FeederRow, FeederTable, feeder_table_info, locate_feeder_tables,
-                                    read_feeder_table, split_heading_feeders, trim_motor_tables)
+from checker.ingest.feeders import (
+    FeederRow,
+    FeederTable,
+    feeder_table_info,
+    locate_feeder_tables,
+    read_feeder_table,
+    split_heading_feeders,
+    trim_motor_tables,
+)
 from checker.ingest.layout import LocatedTable, describe_columns, locate_tables
 from checker.ingest.normalize import frozen_value, normalize_table
 from checker.ingest.readers import Grid, InputError, read_grids
@@ -22,6 +29,7 @@ from checker.model import Motor, MotorReview, NotRun, Review, SkippedRow
 from checker.progress import Progress
 from checker.rules.common import ReviewOptions
 from checker.rules.feeders import review_feeders
+from checker.rules.memo import ReadLog
 from checker.rules.registry import CHECKS, GROUP_CHECKS, runnable
 from checker.rules.ruleset import Ruleset, RulesetError, select_ruleset
 
@@ -44,53 +52,13 @@ def _ruleset_info(ruleset: Ruleset) -> dict:
     return info
 
 
-class _ReadLog(dict):
-    """A copy of a motor record that notes the fields a check reads, and whether it reads them all or writes."""
-
-    __slots__ = ("read", "whole", "written")
-
-    def __init__(self, record: dict) -> None:
-        super().__init__(record)
-        self.read: set = set()
-        self.whole = self.written = False
-
-    def __getitem__(self, key):
-        self.read.add(key)
-        return dict.__getitem__(self, key)
-
-    def get(self, key, default=None):
-        self.read.add(key)
-        return dict.get(self, key, default)
-
-    def __contains__(self, key):
-        self.read.add(key)
-        return dict.__contains__(self, key)
-
-
-def _noting(flag: str, method: str):
-    def call(self, *args, **kwargs):
-        setattr(self, flag, True)
-        return getattr(dict, method)(self, *args, **kwargs)
-    call.__name__ = method
-    return call
-
-
-# Whatever looks at every key (or the key set) reads the whole record; these methods write to it.
-for _method in ("__iter__", "__len__", "__repr__", "__eq__", "__ne__", "__reversed__", "__or__", "__ror__",
-                "keys", "values", "items", "copy", "__reduce__", "__reduce_ex__"):
-    setattr(_ReadLog, _method, _noting("whole", _method))
-for _method in ("__setitem__", "__delitem__", "__ior__", "pop", "popitem", "setdefault", "update", "clear"):
-    setattr(_ReadLog, _method, _noting("written", _method))
-del _method
-
-
 class _MotorView:
     """What a check sees while its reads are logged: the logged record, and any other Motor attribute
     (read from the real motor, noted in ``others``)."""
 
     __slots__ = ("_motor", "others", "record")
 
-    def __init__(self, motor: Motor, record: _ReadLog) -> None:
+    def __init__(self, motor: Motor, record: ReadLog) -> None:
         self.record, self._motor, self.others = record, motor, set()
 
     def __getattr__(self, name: str):
@@ -156,7 +124,7 @@ class _CheckMemo:
             if hit is not None:
                 findings.extend(hit)
                 continue
-            log = _ReadLog(record)
+            log = ReadLog(record)
             view = _MotorView(motor, log)
             result = function(view, self.ruleset, self.options)
             findings.extend(result)

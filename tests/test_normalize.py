@@ -68,3 +68,12 @@ def test_standby_motor_described_as_spare_is_reviewed(tmp_path):
                                 ["SPARE", "", "", "", "", "", "", "", "20A CB", ""]])
     assert [m.motor.tag for m in review.motors] == ["P-9"]
     assert [row.reason for row in review.skipped if row.source.row == 3] == ["spare or space, not a motor"]
+
+
+def test_bundled_motor_schema_is_a_valid_draft_2020_12_schema():
+    import json
+
+    from jsonschema import Draft202012Validator
+
+    from checker.ingest.normalize import SCHEMA_PATH
+    Draft202012Validator.check_schema(json.loads(SCHEMA_PATH.read_text(encoding="utf-8")))

@@ -206,8 +206,9 @@ def _motor_block(motor: Mapping[str, Any], index: int, catalogue: _Catalogue) ->
         out.append(f'<p class="empty">{NO_FINDINGS}</p>\n')
     not_run = [n for n in motor.get("not_run") or [] if isinstance(n, Mapping)]
     if not_run:
-        items = "; ".join(f'{_e(n.get("check"))}: {_e(n.get("reason"))}'
-                          + (f' ({_e(n.get("detail"))})' if n.get("detail") else "") for n in not_run)
+        # The reasons are in the summary's "checks that could not run" table; per motor only its figure.
+        items = "; ".join(_e(n.get("check")) + (f' ({_e(n.get("detail"))})' if n.get("detail") else "")
+                          for n in not_run)
         out.append(f'<p class="nr">Could not run: {items}</p>\n')
     out.append(_raw_text(motor.get("raw"), (motor.get("tag"), description)))
     out.append("</details>\n")

@@ -42,6 +42,7 @@ from checker.model import FeederReview, Finding, Motor, SourceRef, Status
 from checker.rules.common import ReviewOptions, calc, conductor_label, num
 from checker.rules.conductors import table_ampacity
 from checker.rules.current import CurrentBasis, current_basis
+from checker.rules.memo import ReadLog
 from checker.rules.overcurrent import (
     DEVICE_NAMES,
     BranchLimits,
@@ -348,43 +349,6 @@ class BranchValue:
     problem: str | None
 
 
-class _Reads(dict):
-    """A copy of a record that notes the fields read; looking at the whole record or writing sets ``whole``."""
-
-    __slots__ = ("read", "whole")
-
-    def __init__(self, record: dict) -> None:
-        super().__init__(record)
-        self.read: set = set()
-        self.whole = False
-
-    def __getitem__(self, key):
-        self.read.add(key)
-        return dict.__getitem__(self, key)
-
-    def get(self, key, default=None):
-        self.read.add(key)
-        return dict.get(self, key, default)
-
-    def __contains__(self, key):
-        self.read.add(key)
-        return dict.__contains__(self, key)
-
-
-def _whole(method: str):
-    def call(self, *args, **kwargs):
-        self.whole = True
-        return getattr(dict, method)(self, *args, **kwargs)
-    call.__name__ = method
-    return call
-
-
-for _method in ("__iter__", "__len__", "__repr__", "__eq__", "__ne__", "__reversed__", "__or__", "__ror__", "keys",
-                "values", "items", "copy", "__reduce__", "__reduce_ex__", "__setitem__", "__delitem__", "__ior__",
-                "pop", "popitem", "setdefault", "update", "clear"):
-    setattr(_Reads, _method, _whole(_method))
-del _method
-
 _ABSENT = object()
 
 
@@ -417,11 +381,11 @@ class _LimitsMemo:
             key = hit = None
         if hit is not None:
             return hit
-        log = _Reads(_with_device(motor_record, column))
+        log = ReadLog(_with_device(motor_record, column))
         result = branch_limits(log, self.ruleset, self.options)
-        if log.whole:
+        if log.whole or log.written:
             self.direct = True
-        if log.whole or key is None:
+        if self.direct or key is None:
             return result
         read = log.read - {"ocpd"}
         if not read <= set(self.fields):
