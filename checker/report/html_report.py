@@ -19,7 +19,7 @@ from typing import Any
 from jinja2 import Environment, FileSystemLoader, StrictUndefined
 
 from checker.report.build import MotorDicts
-from checker.report.html_motors import MotorsSection
+from checker.report.html_motors import MotorsSection, anchor, format_number
 
 TEMPLATES_DIR = Path(__file__).resolve().parent / "templates"
 TEMPLATE_NAME = "review.html.j2"
@@ -39,22 +39,6 @@ def csp_hash(text: str) -> str:
     """
     digest = hashlib.sha256(str(text).encode("utf-8")).digest()
     return "sha256-" + base64.b64encode(digest).decode("ascii")
-
-
-def format_number(value: Any) -> str:
-    """A limit or provided value for people: up to 3 decimals, no trailing zeros; dash if missing."""
-    if value is None or isinstance(value, bool):
-        return "\u2014"
-    if isinstance(value, (int, float)):
-        text = f"{float(value):.3f}".rstrip("0").rstrip(".")
-        return "0" if text == "-0" else text
-    return str(value)
-
-
-def anchor(check_id: Any) -> str:
-    """Fragment-safe form of a check id, used for ``#check-<id>`` on both ends of a link."""
-    text = str(check_id)
-    return "".join(ch if (ch.isascii() and (ch.isalnum() or ch in "-_.")) else "-" for ch in text)
 
 
 def status_label(status: Any) -> str:
