@@ -10,13 +10,8 @@ from checker.model import Motor, NotRun, SourceRef, Status
 from checker.review import review_schedule
 from checker.rules.bonding import check_bonding, smallest_size_covering
 from checker.rules.common import ReviewOptions
-from checker.rules.ruleset import load_ruleset
+from tests.check_helpers import CEC, CONT, LENIENT, NEC, one
 from tests.fixture_builders import write_csv
-
-CEC = load_ruleset("cec-2015")
-NEC = load_ruleset("nec-2023")
-LENIENT = ReviewOptions()
-CONT = {"service": "continuous"}
 
 
 def motor(**record):
@@ -34,11 +29,6 @@ def cond(size, bond=None, material="cu", sets=1, **kw):
 
 def cb(rating_a, device="breaker"):
     return {"rating_a": rating_a, "device": device}
-
-
-def one(findings):
-    assert len(findings) == 1
-    return findings[0]
 
 
 # ---- tables ---------------------------------------------------------------------------------------------------

@@ -7,15 +7,12 @@ back from it: they are typed here so that a wrong ruleset value fails a test.
 import pytest
 
 from checker.model import Motor, SourceRef, Status
-from checker.rules.common import ReviewOptions
 from checker.rules.conductors import check_conductor_ampacity
 from checker.rules.current import check_motor_current
 from checker.rules.overcurrent import check_branch_ocpd, check_ocpd_standard_rating
 from checker.rules.ruleset import load_ruleset
 
 RS = load_ruleset("cec-2015")
-LENIENT = ReviewOptions()
-STRICT = ReviewOptions(strict=True)
 
 
 def motor(**record):
@@ -28,14 +25,6 @@ def cu(size, sets=1, insulation=None, material="cu", stated=True):
     if insulation:
         c["insulation"] = insulation
     return c
-
-
-CONT = {"service": "continuous"}
-
-
-def one(findings):
-    assert len(findings) == 1
-    return findings[0]
 
 
 # ---- motor current -------------------------------------------------------------------------------
@@ -234,6 +223,8 @@ def test_standard_rating_check_is_silent_without_a_device():
 
 from hypothesis import given, settings
 from hypothesis import strategies as st
+
+from tests.check_helpers import CONT, LENIENT, STRICT, one
 
 _CEC_RATINGS = sorted(RS.table("table_13").values)
 _BREAKER_PERCENT = 250  # CEC Table 29, squirrel-cage full-voltage, inverse-time breaker (Red Seal CEC 2024 guide)

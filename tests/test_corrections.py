@@ -17,16 +17,9 @@ from checker.ingest import normalize, values
 from checker.ingest.headers import FIELDS
 from checker.model import Motor, SourceRef, Status
 from checker.review import review_schedule
-from checker.rules.common import ReviewOptions
 from checker.rules.conductors import _bands, band_row, check_conductor_ampacity
-from checker.rules.ruleset import load_ruleset
+from tests.check_helpers import CEC, CONT, LENIENT, NEC, STRICT
 from tests.fixture_builders import write_csv
-
-NEC = load_ruleset("nec-2023")
-CEC = load_ruleset("cec-2015")
-LENIENT = ReviewOptions()
-STRICT = ReviewOptions(strict=True)
-CONT = {"service": "continuous"}
 
 
 def motor(**record):

@@ -8,14 +8,9 @@ import pytest
 from checker.ingest import values
 from checker.model import Motor, SourceRef, Status
 from checker.review import review_schedule
-from checker.rules.common import ReviewOptions
 from checker.rules.disconnect import check_disconnect
-from checker.rules.ruleset import load_ruleset
+from tests.check_helpers import CEC, LENIENT, NEC, one
 from tests.fixture_builders import write_csv
-
-CEC = load_ruleset("cec-2015")
-NEC = load_ruleset("nec-2023")
-LENIENT = ReviewOptions()
 
 
 def motor(**record):
@@ -27,11 +22,6 @@ def switch(text):
     parsed = values.parse_disconnect(text)
     assert parsed.problem is None, parsed.problem
     return parsed.value["disconnect_switch"]
-
-
-def one(findings):
-    assert len(findings) == 1
-    return findings[0]
 
 
 # ---- parser -------------------------------------------------------------------------------------------------

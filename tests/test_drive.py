@@ -8,16 +8,9 @@ from checker.ingest import values
 from checker.ingest.layout import match_header
 from checker.model import Motor, SourceRef, Status
 from checker.review import review_schedule
-from checker.rules.common import ReviewOptions
 from checker.rules.drive import check_drive_input
-from checker.rules.ruleset import load_ruleset
+from tests.check_helpers import CEC, CONT, LENIENT, NEC, STRICT, one
 from tests.fixture_builders import write_csv
-
-CEC = load_ruleset("cec-2015")
-NEC = load_ruleset("nec-2023")
-LENIENT = ReviewOptions()
-STRICT = ReviewOptions(strict=True)
-CONT = {"service": "continuous"}
 
 
 def motor(**record):
@@ -29,11 +22,6 @@ def motor(**record):
 
 def cond(size, sets=1):
     return {"sets": sets, "conductors_per_set": 3, "size": size, "material": "cu", "material_stated": True}
-
-
-def one(findings):
-    assert len(findings) == 1
-    return findings[0]
 
 
 # ---- parsing --------------------------------------------------------------------------------------------------------

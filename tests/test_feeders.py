@@ -28,9 +28,9 @@ from checker.rules import feeders as F
 from checker.rules.common import ReviewOptions
 from checker.rules.registry import GROUP_CHECKS
 from checker.rules.ruleset import load_ruleset
+from tests.check_helpers import LENIENT
 
 REVIEW_SCHEMA = Path(__file__).resolve().parents[1] / "schemas" / "review.schema.json"
-LENIENT = ReviewOptions()
 
 
 @pytest.fixture(scope="module")

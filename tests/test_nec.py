@@ -15,17 +15,12 @@ from hypothesis import strategies as st
 
 from checker.cli import main
 from checker.model import Motor, SourceRef, Status
-from checker.rules.common import ReviewOptions
 from checker.rules.conductors import check_conductor_ampacity
 from checker.rules.current import check_motor_current, current_basis
 from checker.rules.overcurrent import branch_limits, check_branch_ocpd, check_ocpd_standard_rating
-from checker.rules.ruleset import hp_key, load_ruleset
+from checker.rules.ruleset import hp_key
+from tests.check_helpers import CEC, CONT, LENIENT, NEC, STRICT
 
-NEC = load_ruleset("nec-2023")
-CEC = load_ruleset("cec-2015")
-LENIENT = ReviewOptions()
-STRICT = ReviewOptions(strict=True)
-CONT = {"service": "continuous"}
 RANK = {Status.PASS: 0, Status.NEEDS_INFO: 1, Status.FAIL: 2}
 
 

@@ -8,16 +8,9 @@ import pytest
 from checker.ingest import values
 from checker.model import Motor, NotRun, SourceRef, Status
 from checker.review import review_schedule
-from checker.rules.common import ReviewOptions
 from checker.rules.overload import check_overload
-from checker.rules.ruleset import load_ruleset
+from tests.check_helpers import CEC, CONT, LENIENT, NEC, STRICT, one
 from tests.fixture_builders import write_csv
-
-CEC = load_ruleset("cec-2015")
-NEC = load_ruleset("nec-2023")
-LENIENT = ReviewOptions()
-STRICT = ReviewOptions(strict=True)
-CONT = {"service": "continuous"}
 
 
 def motor(**record):
@@ -30,11 +23,6 @@ def setting(text):
     parsed = values.parse_overload(text)
     assert parsed.problem is None, parsed.problem
     return parsed.value["overload_setting"]
-
-
-def one(findings):
-    assert len(findings) == 1
-    return findings[0]
 
 
 def ol(**kw):

@@ -9,16 +9,10 @@ from checker.ingest import values
 from checker.ingest.layout import match_header
 from checker.model import Motor, SourceRef, Status
 from checker.review import review_schedule
-from checker.rules.common import ReviewOptions
 from checker.rules.conductors import check_conductor_ampacity
 from checker.rules.packaged import check_packaged_mca_mocp
-from checker.rules.ruleset import load_ruleset
+from tests.check_helpers import CEC, LENIENT, NEC, STRICT, one
 from tests.fixture_builders import write_csv
-
-CEC = load_ruleset("cec-2015")
-NEC = load_ruleset("nec-2023")
-LENIENT = ReviewOptions()
-STRICT = ReviewOptions(strict=True)
 
 
 def motor(**record):
@@ -34,11 +28,6 @@ def mocp(text):
     parsed = values.parse_mocp(text)
     assert parsed.problem is None, parsed.problem
     return parsed.value
-
-
-def one(findings):
-    assert len(findings) == 1
-    return findings[0]
 
 
 # ---- parser ------------------------------------------------------------------------------------------------------

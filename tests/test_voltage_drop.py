@@ -15,15 +15,9 @@ import pytest
 from checker.ingest import values
 from checker.model import Motor, SourceRef, Status
 from checker.review import review_schedule
-from checker.rules.common import ReviewOptions
-from checker.rules.ruleset import load_ruleset
 from checker.rules.voltage_drop import check_voltage_drop, drop_v
+from tests.check_helpers import CEC, CONT, LENIENT, NEC, one
 from tests.fixture_builders import write_csv
-
-CEC = load_ruleset("cec-2015")
-NEC = load_ruleset("nec-2023")
-LENIENT = ReviewOptions()
-CONT = {"service": "continuous"}
 
 AWG_N = {"14": 14, "12": 12, "10": 10, "8": 8, "6": 6, "4": 4, "3": 3, "2": 2, "1": 1,
          "1/0": 0, "2/0": -1, "3/0": -2, "4/0": -3}
@@ -53,11 +47,6 @@ def motor(**record):
 
 def cond(size, material="cu", sets=1):
     return {"sets": sets, "size": size, "material": material, "material_stated": True}
-
-
-def one(findings):
-    assert len(findings) == 1
-    return findings[0]
 
 
 # ---- physics cross-checks -------------------------------------------------------------------------------------------
