@@ -8,6 +8,7 @@ Units are carried in names: ``rating_a`` is amperes, ``voltage_v`` volts.
 """
 from __future__ import annotations
 
+from collections.abc import Iterator, Mapping
 from dataclasses import dataclass, field
 from enum import Enum
 from typing import Any
@@ -78,6 +79,37 @@ class SourceRef:
         return out
 
 
+class CellSources(Mapping):
+    """Record field -> :class:`SourceRef` of one row, each made when it is asked for.
+
+    ``columns`` gives each field's column (its letter, or a whole SourceRef for a value taken
+    from elsewhere, such as a section heading). A 100 000-motor schedule would otherwise hold
+    a million SourceRefs that only the few cells a finding names are ever asked for.
+    """
+
+    __slots__ = ("row", "columns")
+
+    def __init__(self, row: SourceRef, columns: dict[str, str | SourceRef | None]) -> None:
+        self.row = row
+        self.columns = columns
+
+    def __getitem__(self, name: str) -> SourceRef:
+        where = self.columns[name]
+        return where if where.__class__ is SourceRef else self.row.at_column(where)
+
+    def __contains__(self, name: object) -> bool:
+        return name in self.columns
+
+    def __iter__(self) -> Iterator[str]:
+        return iter(self.columns)
+
+    def __len__(self) -> int:
+        return len(self.columns)
+
+    def __repr__(self) -> str:
+        return f"CellSources({dict(self)!r})"
+
+
 @dataclass(frozen=True, slots=True)
 class Cell:
     """One raw cell: its text exactly as read (stripped) and where it was."""
@@ -139,7 +171,7 @@ class Motor:
     tag: str
     record: dict[str, Any]
     source: SourceRef
-    sources: dict[str, SourceRef] = field(default_factory=dict)
+    sources: Mapping[str, SourceRef] = field(default_factory=dict)
     raw: dict[str, str] = field(default_factory=dict)
     input_findings: tuple[Finding, ...] = ()
 

@@ -20,6 +20,7 @@ trade usage (common practice), like ``headers.py``.
 from __future__ import annotations
 
 import re
+from functools import lru_cache
 from dataclasses import dataclass, field, replace
 
 from checker.ingest import values
@@ -60,6 +61,7 @@ _LEADING = re.compile(r"^(?:(?:fed|supplied|supply)\s+(?:from|by)|from|(?:feeder
 _TRAILING = re.compile(r"[\s:.\-]*\b(?:feeder|fdr|feed|supply)\b[\s:.\-]*$", re.IGNORECASE)
 
 
+@lru_cache(maxsize=65_536)  # a schedule names a few sources thousands of times over
 def group_key(text: str) -> tuple[str, str]:
     """(comparison key, display label) of the source a motor or feeder names.
 

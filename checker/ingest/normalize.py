@@ -22,7 +22,7 @@ from jsonschema import Draft202012Validator
 
 from checker.ingest import values
 from checker.ingest.layout import LocatedTable
-from checker.model import Finding, Motor, Parsed, SkippedRow, SourceRef, Status
+from checker.model import CellSources, Finding, Motor, Parsed, SkippedRow, SourceRef, Status
 
 SCHEMA_PATH = Path(__file__).resolve().parents[2] / "schemas" / "motor.schema.json"
 
@@ -174,33 +174,51 @@ def frozen_value(value: Any) -> Any:
     return cls, value
 
 
-def record_valid(record: dict) -> bool | None:
-    """Whether ``record`` satisfies the motor schema (None: decide with the full validator)."""
+def value_valid(name: str, value: Any) -> bool:
+    """Whether field ``name`` holding ``value`` satisfies the motor schema on its own (remembered
+    per value; False also when the schema does not split into per-field checks)."""
+    split = _field_validator()
+    if split is None:
+        return False
+    one_field, _, by_length = split
+    cls = value.__class__
+    try:
+        if cls is str:
+            key = (name, len(value)) if name in by_length else (name, value)
+        elif cls is dict or cls is list or cls is tuple:
+            key = (name, frozen_value(value))
+        else:  # a number, bool or None: its class keeps 1, 1.0 and True apart
+            key = (name, cls, value)
+        valid = _field_validity.get(key)
+    except TypeError:  # a value that cannot be hashed: judged each time
+        return one_field.is_valid({name: value})
+    if valid is None:
+        valid = one_field.is_valid({name: value})
+        if len(_field_validity) >= _MAX_REMEMBERED:
+            _field_validity.clear()
+        _field_validity[key] = valid
+    return valid
+
+
+def record_valid(record: dict, known: dict[str, bool] | None = None) -> bool | None:
+    """Whether ``record`` satisfies the motor schema (None: decide with the full validator).
+
+    ``known`` gives the validity of fields already judged (a cell text's value is judged once
+    per table); the other fields are judged here.
+    """
     split = _field_validator()
     if split is None:
         return None
-    one_field, required, by_length = split
+    _, required, _ = split
     if any(name not in record for name in required):
         return False
-    try:
-        for name, value in record.items():
-            cls = value.__class__
-            if cls is str:
-                key = (name, len(value)) if name in by_length else (name, value)
-            elif cls is dict or cls is list or cls is tuple:
-                key = (name, frozen_value(value))
-            else:  # a number, bool or None: its class keeps 1, 1.0 and True apart
-                key = (name, cls, value)
-            valid = _field_validity.get(key)
-            if valid is None:
-                valid = one_field.is_valid({name: value})
-                if len(_field_validity) >= _MAX_REMEMBERED:
-                    _field_validity.clear()
-                _field_validity[key] = valid
-            if not valid:
-                return False
-    except TypeError:  # a value that cannot be hashed: let the full validator judge it
-        return None
+    known = known or {}
+    for name, value in record.items():
+        valid = known.get(name)
+        if valid is None:
+            valid = value_valid(name, value)
+        if not valid:
+            return False
     return True
 
 
@@ -260,6 +278,55 @@ def _read_cell(reader, col, text: str) -> tuple[Parsed, str | None]:
     return parsed, target
 
 
+@dataclass(frozen=True, slots=True)
+class _CellReading:
+    """What one distinct cell text of a column reads as, worked out once per table.
+
+    ``values`` are the (record field, value) pairs the cell gives, each with its validity
+    against the motor schema (decided once, here); ``date`` marks a date or time where an
+    amount belongs; ``leftovers`` are words of a conductor or device cell that were not read.
+    """
+
+    parsed: Parsed
+    target: str | None
+    values: tuple[tuple[str, Any, bool], ...]
+    date: bool = False
+    leftovers: tuple[str, ...] = ()
+
+
+@dataclass(frozen=True, slots=True)
+class _ColumnPlan:
+    """One mapped column as the row loop uses it (worked out once per table)."""
+
+    col: Any
+    index: int
+    raw_key: str
+    letter: str | None
+    reader: FieldReader | None
+    cache: dict
+
+
+def _column_plans(table: LocatedTable) -> list[_ColumnPlan]:
+    return [_ColumnPlan(col, col.index, col.header or col.field, col.letter,
+                        None if col.field in ("bond", "raceway") else FIELD_READERS.get(col.field), {})
+            for col in table.columns]
+
+
+def _cell_reading(plan: _ColumnPlan, text: str) -> _CellReading:
+    col, reader = plan.col, plan.reader
+    if col.field in _AMOUNT_FIELDS and _DATE_TEXT.fullmatch(text):
+        return _CellReading(Parsed(), reader.target, (), date=True)
+    parsed, target = _read_cell(reader, col, text)
+    leftovers: tuple[str, ...] = ()
+    if not parsed.problem and parsed.value is not None and col.field in _STRICT_LEFTOVER_FIELDS:
+        leftovers = tuple(n for n in parsed.notes if n.startswith("ignored '"))
+    pairs: tuple = ()
+    if parsed.value is not None:
+        given = parsed.value.items() if reader.merge else ((target, parsed.value),)
+        pairs = tuple((key, value, value_valid(key, value)) for key, value in given)
+    return _CellReading(parsed, target, pairs, leftovers=leftovers)
+
+
 def _own(value: Any) -> Any:
     """A row's own copy of a remembered value (records are amended later; the remembered one never is)."""
     if value.__class__ is not dict:
@@ -268,112 +335,123 @@ def _own(value: Any) -> Any:
 
 
 def read_motor(table: LocatedTable, row_index: int, section: tuple[str, SourceRef] | None,
-               cell_cache: dict | None = None) -> Motor:
+               plans: list[_ColumnPlan] | None = None) -> Motor:
     """Build and validate one motor record from a data row.
 
-    ``cell_cache`` (one dict per table) remembers what each distinct cell text of a column reads
-    as, so a text repeated down a column is parsed once.
+    ``plans`` (from ``_column_plans``, one list per table) remember what each distinct cell
+    text of a column reads as, so a text repeated down a column is read and validated once.
     """
+    plans = _column_plans(table) if plans is None else plans
     grid = table.grid
     row_number = grid.row_numbers[row_index]
     cells = grid.rows[row_index]
     row_source = grid.source(row_index)
     record: dict[str, Any] = {}
-    sources: dict[str, SourceRef] = {}
+    columns: dict[str, Any] = {}
+    valid: dict[str, bool] = {}
     raw: dict[str, str] = {}
     findings: list[Finding] = []
-    texts = {col.field: cells[col.index] for col in table.columns}
-    # A separate device-type column ("FUSE" / "CB") completes the device cell.
-    if texts.get("ocpd") and texts.get("ocpd_type"):
-        texts["ocpd"] = f"{texts['ocpd']} {texts['ocpd_type']}"
-    for col in table.columns:
-        text = texts[col.field]
-        if text:
-            raw[col.header or col.field] = text
-        source = row_source.at_column(col.letter)
-        reader = FIELD_READERS.get(col.field)
-        if not text and (row_index, col.index) in grid.formula_cells:
-            findings.append(_input_finding(
-                f"Cell {source.label()} ({col.header}) holds a formula saved without its result; formulas are "
-                f"never calculated here - recalculate and save the workbook in a spreadsheet program, or type "
-                f"the value, and resubmit", (reader.target if reader else None) or col.field))
-            continue
-        if col.field in ("bond", "raceway"):
-            continue
-        if reader is None or not text:
-            continue
-        if col.field in _AMOUNT_FIELDS and _DATE_TEXT.fullmatch(text):
-            findings.append(_input_finding(
-                f"Cell {source.label()} ({col.header}) holds a date or time '{text}' where a number belongs; the "
-                f"cell is probably formatted as a date - check the value and resubmit", reader.target or col.field))
-            continue
-        if cell_cache is None:
-            parsed, target = _read_cell(reader, col, text)
-        else:
-            outcome = cell_cache.get((col.index, text))
-            if outcome is None:
-                if len(cell_cache) >= _MAX_REMEMBERED:
-                    cell_cache.clear()
-                outcome = cell_cache[(col.index, text)] = _read_cell(reader, col, text)
-            parsed, target = outcome
-        if parsed.problem:
-            findings.append(_input_finding(
-                f"Cell {source.label()} ({col.header}) '{_short(text)}' could not be read: {parsed.problem}",
-                target or col.field))
-        elif parsed.value is not None and col.field in _STRICT_LEFTOVER_FIELDS:
-            leftovers = [n for n in parsed.notes if n.startswith("ignored '")]
-            if leftovers:  # unknown words in a conductor or device cell may change the answer
+    formula_cells = grid.formula_cells
+    device_type = next((cells[p.index] for p in plans if p.col.field == "ocpd_type"), "")
+    for plan in plans:
+        text = cells[plan.index]
+        if not text:
+            if formula_cells and (row_index, plan.index) in formula_cells:
+                col, reader = plan.col, plan.reader
                 findings.append(_input_finding(
-                    f"Cell {source.label()} ({col.header}) '{_short(text)}' was read only in part "
-                    f"({'; '.join(leftovers)}); confirm the rest does not change it", target))
-        if parsed.value is None:
+                    f"Cell {row_source.at_column(plan.letter).label()} ({col.header}) holds a formula saved without "
+                    f"its result; formulas are never calculated here - recalculate and save the workbook in a "
+                    f"spreadsheet program, or type the value, and resubmit", (reader.target if reader else None)
+                    or col.field))
+            continue
+        raw[plan.raw_key] = text
+        reader = plan.reader
+        if reader is None:
+            continue
+        if device_type and plan.col.field == "ocpd":
+            text = f"{text} {device_type}"  # a separate device-type column ("FUSE" / "CB") completes the cell
+        reading = plan.cache.get(text)
+        if reading is None:
+            if len(plan.cache) >= _MAX_REMEMBERED:
+                plan.cache.clear()
+            reading = plan.cache[text] = _cell_reading(plan, text)
+        if reading.parsed.problem or reading.date or reading.leftovers:
+            findings.append(_cell_finding(plan, row_source, text, reading))
+        if not reading.values:
             continue
         if reader.merge:
-            for key, value in _own(parsed.value).items():
-                record.setdefault(key, value)
-                sources.setdefault(key, source)
+            for key, value, ok in reading.values:
+                if key not in record:
+                    record[key], columns[key], valid[key] = _own(value), plan.letter, ok
         else:
-            record[target] = _own(parsed.value)
-            sources[target] = source
-    _attach_conductor_extras(table, cells, row_source, record, sources, findings)
+            (key, value, ok), = reading.values
+            record[key], columns[key], valid[key] = _own(value), plan.letter, ok
+    sources = CellSources(row_source, columns)
+    if _attach_conductor_extras(table, cells, row_source, record, findings):
+        valid.pop("conductor", None)  # amended from other columns: validated as it now is
     if "fed_from" not in record and section is not None:
-        record["fed_from"], sources["fed_from"] = section
+        record["fed_from"], columns["fed_from"] = section
     tag = record.get("tag")
     if not tag:
         tag = f"(row {row_number})"
         findings.append(_input_finding(f"Row {row_number} has motor data but no tag; it is reviewed as '{tag}'.", "tag"))
         record["tag"] = tag
-    findings.extend(_schema_findings(record, sources))
+        valid.pop("tag", None)
+    findings.extend(_schema_findings(record, sources, valid))
     return Motor(tag=str(record["tag"]), record=record, source=row_source, sources=sources, raw=raw,
                  input_findings=tuple(findings))
 
 
-def _attach_conductor_extras(table, cells, row_source, record, sources, findings) -> None:
-    """Fold separate bond/ground and raceway columns into the conductor record."""
+def _cell_finding(plan: _ColumnPlan, row_source: SourceRef, text: str, reading: _CellReading) -> Finding:
+    """The needs-info finding of a cell that is a date, could not be read, or was read only in part."""
+    col, target = plan.col, reading.target
+    label = row_source.at_column(plan.letter).label()
+    if reading.date:
+        return _input_finding(
+            f"Cell {label} ({col.header}) holds a date or time '{text}' where a number belongs; the "
+            f"cell is probably formatted as a date - check the value and resubmit", target or col.field)
+    if reading.parsed.problem:
+        return _input_finding(f"Cell {label} ({col.header}) '{_short(text)}' could not be read: "
+                              f"{reading.parsed.problem}", target or col.field)
+    # unknown words in a conductor or device cell may change the answer
+    return _input_finding(f"Cell {label} ({col.header}) '{_short(text)}' was read only in part "
+                          f"({'; '.join(reading.leftovers)}); confirm the rest does not change it", target)
+
+
+def _attach_conductor_extras(table, cells, row_source, record, findings) -> bool:
+    """Fold separate bond/ground and raceway columns into the conductor record; True if it changed."""
     conductor = record.get("conductor")
+    changed = False
     for col in table.columns:
-        text = cells[col.index]
-        if not text or col.field not in ("bond", "raceway") or conductor is None:
+        if col.field not in ("bond", "raceway") or conductor is None:
             continue
-        source = row_source.at_column(col.letter)
+        text = cells[col.index]
+        if not text:
+            continue
         if col.field == "raceway":
+            changed = True
             conductor.setdefault("raceway", " ".join(text.split()))
             continue
         parsed = values.parse_conductor(text)
         if parsed.value is None:
             if not parsed.placeholder:
                 findings.append(_input_finding(
-                    f"Cell {source.label()} ({col.header}) '{_short(text)}' could not be read as a bond conductor: "
-                    f"{parsed.problem}", "conductor"))
+                    f"Cell {row_source.at_column(col.letter).label()} ({col.header}) '{_short(text)}' could not be "
+                    f"read as a bond conductor: {parsed.problem}", "conductor"))
             continue
+        changed = True
         conductor.setdefault("bond_size", parsed.value["size"])
         if parsed.value.get("material_stated"):
             conductor.setdefault("bond_material", parsed.value["material"])
+    return changed
 
 
-def _schema_findings(record: dict, sources: dict[str, SourceRef]) -> list[Finding]:
-    """Validate against the motor schema; drop each offending field and say why."""
-    if record_valid(record):
+def _schema_findings(record: dict, sources: CellSources, known: dict[str, bool] | None = None) -> list[Finding]:
+    """Validate against the motor schema; drop each offending field and say why.
+
+    ``known`` gives the validity of fields whose values were judged already (see ``record_valid``).
+    """
+    if record_valid(record, known):
         return []
     findings = []
     bad_fields: set[str] = set()
@@ -400,7 +478,7 @@ def normalize_table(table: LocatedTable) -> TableResult:
     header_texts = {col.field: col.header.split(" / ")[-1] for col in table.columns}
     section: tuple[str, SourceRef] | None = None
     formula_rows = {r for r, _ in grid.formula_cells}
-    cell_cache: dict = {}
+    plans = _column_plans(table)
     for index in range(table.data_first, table.data_last + 1):
         cells = grid.rows[index]
         row_number = grid.row_numbers[index]
@@ -411,7 +489,7 @@ def normalize_table(table: LocatedTable) -> TableResult:
         cells = grid.rows[index]
         source = grid.source(index)
         if reason is None:
-            result.motors.append(read_motor(table, index, section, cell_cache))
+            result.motors.append(read_motor(table, index, section, plans))
             if row_number in grid.hidden_rows:
                 result.hidden_motor_rows.append(row_number)
             continue
