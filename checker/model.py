@@ -53,15 +53,19 @@ class SourceRef:
 
     def label(self) -> str:
         """Short human locator: ``Motors!C12``, ``row 12`` or ``p. 3, table 1, row 5``."""
+        return self.label_at(self.column)
+
+    def label_at(self, column: str | None) -> str:
+        """``label()`` of this row at ``column`` (``self.at_column(column).label()``, made directly)."""
         if self.page is not None:
             where = f"p. {self.page}"
             if self.table is not None:
                 where += f", table {self.table}"
             where += f", row {self.row}"
-            if self.column:
-                where += f", col {self.column}"
+            if column:
+                where += f", col {column}"
             return where
-        cell = f"{self.column or ''}{self.row}" if self.column else f"row {self.row}"
+        cell = f"{column}{self.row}" if column else f"row {self.row}"
         return f"{self.sheet}!{cell}" if self.sheet else cell
 
     def to_dict(self) -> dict[str, Any]:

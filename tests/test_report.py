@@ -359,3 +359,15 @@ def test_report_layer_imports_only_model():
                 if name == "checker":
                     assert all(alias.name == "model" for alias in node.names), (path.name, name)
     assert model.Status.FAIL.value == "fail"
+
+
+@pytest.mark.parametrize("value", [
+    {"a": 1, "b": [1, (2, 3)], "c": {"d": float("nan"), "e": float("-inf")}, "s": Status.FAIL, "t": True,
+     "n": None, "f": 2.5, "day": date(2025, 1, 2), "text": "é \u2028 <x>"},
+    {"set": {2, 1}}, {1: "key not text"}, {"big": 10**30}, {"path": Path("/home/someone/schedule.xlsx")},
+])
+def test_plain_record_is_plain(value):
+    """The compiled copy of a record gives exactly what the reference ``plain`` gives, also for the
+    values it hands back to ``plain`` (sets, non-text keys, big integers, paths)."""
+    assert build.plain_record(value) == build.plain(value)
+    assert json.dumps(build.plain_record(value), allow_nan=False)

@@ -15,6 +15,8 @@ from itertools import tee
 from pathlib import PurePath, PurePosixPath, PureWindowsPath
 from typing import Any
 
+import orjson
+
 from checker import model
 
 TOOL_NAME = "motorcheck"
@@ -84,6 +86,17 @@ def plain(value: Any) -> Any:
     return str(value)
 
 
+def plain_record(value: dict[str, Any]) -> Any:
+    """``plain(value)`` for a record or row of JSON-like values, copied by orjson's compiled
+    writer and reader when it can (the same result: tuples become lists, NaN and infinity None);
+    anything orjson cannot write (sets, paths, integers beyond 64 bits, keys that are not
+    strings) goes to :func:`plain`."""
+    try:
+        return orjson.loads(orjson.dumps(value))
+    except TypeError:  # orjson.JSONEncodeError
+        return plain(value)
+
+
 @lru_cache(maxsize=256)
 def safe_file_name(path_text: str) -> str:
     """``path_text`` unchanged if relative, else only its final name.
@@ -128,10 +141,16 @@ def cells_for(finding: model.Finding, sources: Mapping[str, model.SourceRef],
     for field_name in finding.fields:
         cell = known.get(field_name) if known is not None else None
         if cell is None:
-            source = sources.get(field_name)
-            if source is None:
+            if field_name not in sources:
                 continue
-            cell = {"field": field_name, "label": source.label(), "column": source.column}
+            if sources.__class__ is model.CellSources:  # the label without making a SourceRef
+                row, column = sources.row, sources.columns[field_name]
+                if column.__class__ is model.SourceRef:
+                    row, column = column, column.column
+                cell = {"field": field_name, "label": row.label_at(column), "column": column}
+            else:
+                source = sources[field_name]
+                cell = {"field": field_name, "label": source.label(), "column": source.column}
             if known is not None:
                 known[field_name] = cell
         cells.append(cell)
@@ -196,8 +215,8 @@ def motor_dict(motor_review: model.MotorReview,
         "tag": motor.tag,
         "status": worst_status(item["status"] for item in findings),
         "source": source_dict(motor.source),
-        "record": plain(motor.record),
-        "raw": plain(motor.raw),
+        "record": plain_record(motor.record),
+        "raw": plain_record(motor.raw),
         "findings": findings,
         "not_run": [{"check": item.check, "reason": item.reason, "detail": item.detail}
                     for item in motor_review.not_run],
@@ -216,6 +235,7 @@ class MotorDicts(Sequence):
                  shared: dict[int, tuple[model.Finding, dict[str, Any]]]) -> None:
         self._reviews = reviews
         self._shared = shared
+        self._statuses: tuple[list[str], list[str]] | None = None  # the reviews never change
 
     def __len__(self) -> int:
         return len(self._reviews)
@@ -237,12 +257,16 @@ class MotorDicts(Sequence):
 
     def statuses(self) -> tuple[list[str], list[str]]:
         """(each motor's status, every finding's status), as ``motor_dict`` would give them."""
-        motor_statuses, finding_statuses = [], []
-        for review in self._reviews:
-            statuses = [model.Status(f.status).value for f in (*review.motor.input_findings, *review.findings)]
-            motor_statuses.append(worst_status(statuses))
-            finding_statuses.extend(statuses)
-        return motor_statuses, finding_statuses
+        if self._statuses is None:
+            motor_statuses, finding_statuses = [], []
+            value_of = {status: status.value for status in model.Status}
+            for review in self._reviews:
+                statuses = [value_of.get(f.status) or model.Status(f.status).value
+                            for f in (*review.motor.input_findings, *review.findings)]
+                motor_statuses.append(worst_status(statuses))
+                finding_statuses.extend(statuses)
+            self._statuses = motor_statuses, finding_statuses
+        return self._statuses
 
 
 class _MotorDictsBranch(MotorDicts):
@@ -251,6 +275,7 @@ class _MotorDictsBranch(MotorDicts):
 
     def __init__(self, source: MotorDicts, items: Iterator[dict[str, Any]]) -> None:
         super().__init__(source._reviews, source._shared)
+        self._statuses = source._statuses
         self._items = items
 
     def __iter__(self) -> Iterator[dict[str, Any]]:
