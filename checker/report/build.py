@@ -28,6 +28,11 @@ STATUS_ORDER: tuple[str, ...] = (
     model.Status.PASS.value,
 )
 
+# Motors per piece of text that a report writer yields. Two writers take one piece each in turn
+# (files.write_atomic_together) and motors one has read wait in memory for the other, so both
+# writers use this same count and read the motors in step.
+MOTORS_PER_PIECE = 32
+
 # Limits and provided values are printed to 3 decimals; more would only show float noise.
 VALUE_DECIMALS = 3
 

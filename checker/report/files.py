@@ -30,6 +30,7 @@ def write_atomic_chunks(path: Path, chunks: Iterable[str]) -> None:
 
 
 _DONE = object()
+_GATHER_CHARS = 1 << 18
 
 
 def write_atomic_together(targets: list[tuple[Path, Iterable[str]]]) -> None:
@@ -52,14 +53,24 @@ def write_atomic_together(targets: list[tuple[Path, Iterable[str]]]) -> None:
             handle, temp_name = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
             stream = os.fdopen(handle, "w", encoding="utf-8", newline="", buffering=1 << 20)
             opened.append((path, mode, temp_name, stream, iter(chunks)))
-        active = list(opened)
+        # Pieces are gathered and written some 256 KiB at a time: a page template gives hundreds of
+        # thousands of small pieces, and each write to a text stream has its own cost.
+        pending: list[list[str]] = [[] for _ in opened]
+        sizes = [0] * len(opened)
+        active = list(range(len(opened)))
         while active:
-            for item in list(active):
-                chunk = next(item[4], _DONE)
+            for number in list(active):
+                chunk = next(opened[number][4], _DONE)
                 if chunk is _DONE:
-                    active.remove(item)
-                else:
-                    item[3].write(chunk)
+                    active.remove(number)
+                    opened[number][3].write("".join(pending[number]))
+                    pending[number] = []
+                    continue
+                pending[number].append(chunk)
+                sizes[number] += len(chunk)
+                if sizes[number] >= _GATHER_CHARS:
+                    opened[number][3].write("".join(pending[number]))
+                    pending[number], sizes[number] = [], 0
         for _, _, _, stream, _ in opened:
             stream.flush()
             os.fsync(stream.fileno())

@@ -20,6 +20,8 @@ from typing import Any
 
 from markupsafe import Markup
 
+from checker.report.build import MOTORS_PER_PIECE
+
 # Worst first; the labels shown for each status.
 STATUS_LABELS = {"fail": "FAIL", "needs-info": "NEEDS INFO", "pass": "PASS"}
 # Finding lines carry a short class (a 10 000-motor page has 100 000 of them); a pass has none.
@@ -163,12 +165,19 @@ class MotorsSection:
         self.done = False
 
     def __iter__(self) -> Iterator[Markup]:
+        """The blocks, a few dozen motors to a piece (each piece the template writes has a cost)."""
         self.catalogue = _Catalogue(self.appendix_ids)
         written = False
+        blocks: list[str] = []
         for index, motor in enumerate(self.motors, start=1):
             if isinstance(motor, Mapping):
                 written = True
-                yield Markup(_motor_block(motor, index, self.catalogue))
+                blocks.append(_motor_block(motor, index, self.catalogue))
+                if len(blocks) == MOTORS_PER_PIECE:
+                    yield Markup("".join(blocks))
+                    blocks = []
+        if blocks:
+            yield Markup("".join(blocks))
         if not written:
             yield Markup(f'<p class="empty">{NO_MOTORS}</p>\n')
         self.done = True

@@ -10,7 +10,7 @@ from typing import Any
 
 import orjson
 
-from checker.report.build import FindingEntry, MotorDicts
+from checker.report.build import MOTORS_PER_PIECE, FindingEntry, MotorDicts
 
 SCHEMAS_DIR = Path(__file__).resolve().parents[2] / "schemas"
 REVIEW_SCHEMA = SCHEMAS_DIR / "review.schema.json"
@@ -58,12 +58,15 @@ def iter_json(report: dict[str, Any]) -> Iterator[str]:
             if not len(value):
                 yield head + "[]"
                 continue
-            piece = head + "[\n    "
+            out = [head, "[\n    "]
             for index, item in enumerate(value):
-                out = [piece] if index == 0 else [",\n    "]
+                if index:
+                    out.append(",\n    ")
                 _object_text(item, shared, out)
-                yield "".join(out)
-            yield "\n  ]"
+                if index % MOTORS_PER_PIECE == MOTORS_PER_PIECE - 1:
+                    yield "".join(out)
+                    out = []
+            yield "".join(out) + "\n  ]"
         else:
             yield head + _encode(value)
     yield "\n}\n"
