@@ -91,7 +91,7 @@ class CellSources(Mapping):
     a million SourceRefs that only the few cells a finding names are ever asked for.
     """
 
-    __slots__ = ("row", "columns")
+    __slots__ = ("columns", "row")
 
     def __init__(self, row: SourceRef, columns: dict[str, str | SourceRef | None]) -> None:
         self.row = row

@@ -157,7 +157,7 @@ def test_codes_lists_verification_counts(capsys):
 def test_python_dash_m_entry_point(tmp_path):
     proc = subprocess.run([sys.executable, "-m", "checker", "review", str(DEMO_XLSX), "--quiet",
                            "--json", str(tmp_path / "r.json"), "--html", str(tmp_path / "r.html")],
-                          capture_output=True, text=True, timeout=120)
+                          check=False, capture_output=True, text=True, timeout=120)
     assert proc.returncode == 1 and "Traceback" not in proc.stderr
     assert "result: FAIL" in proc.stdout
 

@@ -12,6 +12,7 @@ import re
 import shutil
 import tomllib
 from decimal import ROUND_HALF_UP, Decimal
+from itertools import pairwise
 
 import pytest
 from hypothesis import given
@@ -406,7 +407,7 @@ def test_branch_params_name_existing_rows_and_columns(cec):
 def test_motor_current_voltage_bands(cec):
     params = cec.check("motor-current").params
     bands = sorted(params["voltage_columns"], key=lambda b: b["min_v"])
-    for low, high in zip(bands, bands[1:]):
+    for low, high in pairwise(bands):
         assert low["max_v"] < high["min_v"]  # no voltage falls in two bands
     columns = {b["column"] for b in bands}
     assert columns == set(cec.table(params["three_phase_table"]).columns)

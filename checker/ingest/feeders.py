@@ -20,8 +20,8 @@ trade usage (common practice), like ``headers.py``.
 from __future__ import annotations
 
 import re
-from functools import lru_cache
 from dataclasses import dataclass, field, replace
+from functools import lru_cache
 
 from checker.ingest import values
 from checker.ingest.layout import (

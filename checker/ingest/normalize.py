@@ -42,7 +42,7 @@ _MOTOR_TYPE_WORDS = (
 
 # Words that make a section heading name the equipment feeding the motors below it.
 _SOURCE_RE = re.compile(r"\b(mcc|panel|pnl|swbd|switchboard|switchgear|substation|bus|splitter|"
-                        r"[a-z]{0,3}dp|lp|pp|fed\s+from)\b|\b(mcc|lp|pp|dp)-?\d", re.I)
+                        r"[a-z]{0,3}dp|lp|pp|fed\s+from)\b|\b(mcc|lp|pp|dp)-?\d", re.IGNORECASE)
 
 # Layout fields whose presence makes a row a motor rather than a heading.
 _MOTOR_DATA_FIELDS = ("hp", "kw", "fla", "voltage", "voltage_phase", "conductor", "ocpd", "mca", "mocp")

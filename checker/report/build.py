@@ -167,10 +167,51 @@ class FindingEntry(dict):
 
     ``shared`` (every key but ``cells``) is one object for all motors given the very same
     :class:`~checker.model.Finding` (a review reuses a check's findings for motors with equal
-    values), so the emitters can render that part once; ``cells`` is this motor's own.
+    values), so the emitters can render that part once; ``cells`` is this motor's own. Any
+    change to the entry sets ``shared`` to None: the emitters then render the entry as it is.
     """
 
     __slots__ = ("shared",)
+
+    def _changed(self) -> None:
+        self.shared = None
+
+    def __setitem__(self, key, value):
+        self._changed()
+        dict.__setitem__(self, key, value)
+
+    def __delitem__(self, key):
+        self._changed()
+        dict.__delitem__(self, key)
+
+    def __ior__(self, other):
+        self._changed()
+        return dict.__ior__(self, other)
+
+    def pop(self, *args):
+        self._changed()
+        return dict.pop(self, *args)
+
+    def popitem(self):
+        self._changed()
+        return dict.popitem(self)
+
+    def setdefault(self, key, default=None):
+        self._changed()
+        return dict.setdefault(self, key, default)
+
+    def update(self, *args, **kwargs):
+        self._changed()
+        dict.update(self, *args, **kwargs)
+
+    def clear(self):
+        self._changed()
+        dict.clear(self)
+
+
+def shared_part(entry: Any) -> dict[str, Any] | None:
+    """The shared part of an unchanged :class:`FindingEntry`, else None."""
+    return entry.shared if entry.__class__ is FindingEntry else None
 
 
 def _shared_part(finding: model.Finding) -> dict[str, Any]:
@@ -202,7 +243,7 @@ def finding_dict(finding: model.Finding, sources: Mapping[str, model.SourceRef],
     if shared is not None and known is None:
         shared[id(finding)] = (finding, part)
     entry = FindingEntry(part)
-    entry["cells"] = cells_for(finding, sources, cells)
+    dict.__setitem__(entry, "cells", cells_for(finding, sources, cells))
     entry.shared = part
     return entry
 

@@ -20,7 +20,7 @@ from typing import Any
 
 from markupsafe import Markup
 
-from checker.report.build import MOTORS_PER_PIECE
+from checker.report.build import MOTORS_PER_PIECE, shared_part
 
 # Worst first; the labels shown for each status.
 STATUS_LABELS = {"fail": "FAIL", "needs-info": "NEEDS INFO", "pass": "PASS"}
@@ -91,8 +91,7 @@ class _Catalogue:
 
     def number(self, finding: Mapping[str, Any]) -> int:
         """Number of this finding's entry ('w-<n>'), adding it on first sight."""
-        part = getattr(finding, "shared", None)
-        part = part if isinstance(part, dict) and _same(finding, part) else finding
+        part = shared_part(finding) or finding
         key = id(part)
         number = self.ids.get(key)
         if number is None:
@@ -119,15 +118,6 @@ class _Catalogue:
                 f'{"motor" if count == 1 else "motors"})</span></p>{working_html(part)}'
                 + (f'<p class="cite">{_e(citation)}</p>' if citation else "") + "</article>\n")
         return "".join(out)
-
-
-def _same(finding: Mapping[str, Any], part: Mapping[str, Any]) -> bool:
-    """The finding still carries every value of its shared part (nothing changed it since)."""
-    get = finding.get
-    for key, value in part.items():
-        if get(key, finding) is not value:
-            return False
-    return True
 
 
 def _cells_text(finding: Mapping[str, Any], sheet_prefix: str) -> str:

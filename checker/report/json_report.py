@@ -4,13 +4,12 @@ from __future__ import annotations
 import json
 from collections.abc import Iterator
 from functools import lru_cache
-from operator import is_
 from pathlib import Path
 from typing import Any
 
 import orjson
 
-from checker.report.build import MOTORS_PER_PIECE, FindingEntry, MotorDicts
+from checker.report.build import MOTORS_PER_PIECE, MotorDicts
 
 SCHEMAS_DIR = Path(__file__).resolve().parents[2] / "schemas"
 REVIEW_SCHEMA = SCHEMAS_DIR / "review.schema.json"
@@ -34,9 +33,6 @@ def _encode(value: Any) -> str:
         return _std_encode(value)
 
 
-_string = json.encoder.encode_basestring  # what that encoder writes for a str
-
-
 def dumps(report: dict[str, Any]) -> str:
     """The report as JSON text: UTF-8 kept as is, keys in report order, one top-level key per line
     and, in lists of objects (motors, skipped rows, feeders, ...), one object per line.
@@ -48,8 +44,7 @@ def dumps(report: dict[str, Any]) -> str:
 
 
 def iter_json(report: dict[str, Any]) -> Iterator[str]:
-    """The text of :func:`dumps` in pieces (about one per object), to write as they come."""
-    shared: dict[int, str] = {}
+    """The text of :func:`dumps` in pieces (up to ``MOTORS_PER_PIECE`` objects each), to write as they come."""
     yield "{\n"
     for number, (key, value) in enumerate(report.items()):
         head = (",\n  " if number else "  ") + _encode(str(key)) + ": "
@@ -62,7 +57,7 @@ def iter_json(report: dict[str, Any]) -> Iterator[str]:
             for index, item in enumerate(value):
                 if index:
                     out.append(",\n    ")
-                _object_text(item, shared, out)
+                out.append(_encode(item))
                 if index % MOTORS_PER_PIECE == MOTORS_PER_PIECE - 1:
                     yield "".join(out)
                     out = []
@@ -70,51 +65,6 @@ def iter_json(report: dict[str, Any]) -> Iterator[str]:
         else:
             yield head + _encode(value)
     yield "\n}\n"
-
-
-def _object_text(item: dict[str, Any], shared: dict[int, str], out: list[str]) -> None:
-    """Append one object on one line; a last ``findings`` list is spliced from cached shared parts."""
-    findings = item.get("findings")
-    if not isinstance(findings, list) or not findings or next(reversed(item)) != "findings":
-        out.append(_encode(item))
-        return
-    rest = _encode({k: v for k, v in item.items() if k != "findings"})
-    out.append(rest[:-1] + (',"findings":[' if len(item) > 1 else '"findings":['))
-    for number, entry in enumerate(findings):
-        if number:
-            out.append(",")
-        part = entry.shared if type(entry) is FindingEntry else None
-        if part is None or not _unchanged(entry, part):
-            out.append(_encode(entry))  # built or changed elsewhere: encoded whole
-            continue
-        head = shared.get(id(part))
-        if head is None:
-            head = shared[id(part)] = _encode(part)[:-1] + ("," if part else "")
-        out.append(head)
-        out.append('"cells":[')
-        out.append(",".join([_cell_text(cell) for cell in entry["cells"]]))
-        out.append("]}")
-    out.append("]}")
-
-
-def _unchanged(entry: dict[str, Any], part: dict[str, Any]) -> bool:
-    """True when ``entry`` is still ``part`` (the very same values) plus a last key ``cells``."""
-    if len(entry) != len(part) + 1 or next(reversed(entry)) != "cells":
-        return False
-    try:
-        return all(map(is_, map(entry.__getitem__, part), part.values()))
-    except KeyError:
-        return False
-
-
-def _cell_text(cell: Any) -> str:
-    """JSON of one ``{"field", "label", "column"}`` cell, as the C encoder writes it."""
-    if type(cell) is dict and len(cell) == 3:
-        field, label, column = cell.get("field"), cell.get("label"), cell.get("column", 0)
-        if type(field) is str and type(label) is str and (column is None or type(column) is str):
-            column_text = "null" if column is None else _string(column)
-            return f'{{"field":{_string(field)},"label":{_string(label)},"column":{column_text}}}'
-    return _encode(cell)
 
 
 @lru_cache(maxsize=1)
