@@ -23,7 +23,7 @@ from checker.ingest.feeders import (
     trim_motor_tables,
 )
 from checker.ingest.layout import LocatedTable, describe_columns, locate_tables
-from checker.ingest.normalize import frozen_value, normalize_table
+from checker.ingest.normalize import FrozenValues, normalize_table
 from checker.ingest.readers import Grid, InputError, read_grids
 from checker.model import Motor, MotorReview, NotRun, Review, SkippedRow
 from checker.progress import Progress
@@ -100,12 +100,13 @@ class _CheckMemo:
         self.found: dict[str, dict] = {}            # check id -> key -> findings
         self.direct: set[str] = set()
         self.all_direct = False
+        self.frozen = FrozenValues()
 
     def run(self, motor: Motor, check_ids: list[str]) -> tuple:
         findings: list = []
         record = motor.record
         try:
-            frozen = None if self.all_direct else _Frozen(zip(record, map(frozen_value, record.values())))
+            frozen = None if self.all_direct else _Frozen(zip(record, map(self.frozen, record.values())))
         except TypeError:
             frozen = None
         for cid in check_ids:

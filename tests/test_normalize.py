@@ -77,3 +77,18 @@ def test_bundled_motor_schema_is_a_valid_draft_2020_12_schema():
 
     from checker.ingest.normalize import SCHEMA_PATH
     Draft202012Validator.check_schema(json.loads(SCHEMA_PATH.read_text(encoding="utf-8")))
+
+
+def test_rows_with_the_same_conductor_text_keep_their_own_bond_and_raceway(tmp_path):
+    """A cell text is read once per table and its value shared by the rows that repeat it; a row
+    whose bond or raceway column amends that conductor must not change the other rows' value."""
+    header = ["TAG", "HP", "VOLTS", "FLA", "CONDUCTORS", "BOND", "RACEWAY", "OCPD"]
+    review = _review(tmp_path, [header,
+                                ["P-1", "10", "575", "11", "3#12 RW90", "", "", "25A CB"],
+                                ["P-2", "10", "575", "11", "3#12 RW90", "#10", "27 mm EMT", "25A CB"],
+                                ["P-3", "10", "575", "11", "3#12 RW90", "", "", "25A CB"]])
+    conductors = {m.motor.tag: m.motor.record["conductor"] for m in review.motors}
+    assert conductors["P-2"]["bond_size"] == "10" and conductors["P-2"]["raceway"] == "27 mm EMT"
+    for tag in ("P-1", "P-3"):
+        assert "bond_size" not in conductors[tag] and "raceway" not in conductors[tag]
+    assert conductors["P-1"] == conductors["P-3"]

@@ -200,6 +200,33 @@ def value_valid(name: str, value: Any) -> bool:
     return valid
 
 
+class FrozenValues:
+    """``frozen_value`` that remembers the stand-in of each container it has seen, by identity.
+
+    Rows with the same cell text share one value object (each distinct text is read once per
+    table and the value handed out is never changed afterwards), so a review freezes most
+    containers once. Use one instance per review, on records nothing changes while it lives.
+    """
+
+    def __init__(self) -> None:
+        self._known: dict[int, tuple[Any, Any]] = {}
+
+    def __call__(self, value: Any) -> Any:
+        cls = value.__class__
+        if cls is str or value is None:
+            return value
+        if cls is dict or cls is list or cls is tuple:
+            known = self._known.get(id(value))
+            if known is not None and known[0] is value:  # the object is held, so its id is not reused
+                return known[1]
+            frozen = frozen_value(value)
+            if len(self._known) >= _MAX_REMEMBERED:
+                self._known.clear()
+            self._known[id(value)] = (value, frozen)
+            return frozen
+        return cls, value
+
+
 def record_valid(record: dict, known: dict[str, bool] | None = None) -> bool | None:
     """Whether ``record`` satisfies the motor schema (None: decide with the full validator).
 
@@ -327,13 +354,6 @@ def _cell_reading(plan: _ColumnPlan, text: str) -> _CellReading:
     return _CellReading(parsed, target, pairs, leftovers=leftovers)
 
 
-def _own(value: Any) -> Any:
-    """A row's own copy of a remembered value (records are amended later; the remembered one never is)."""
-    if value.__class__ is not dict:
-        return value
-    return {k: (list(v) if isinstance(v, list) else v) for k, v in value.items()}
-
-
 def read_motor(table: LocatedTable, row_index: int, section: tuple[str, SourceRef] | None,
                plans: list[_ColumnPlan] | None = None) -> Motor:
     """Build and validate one motor record from a data row.
@@ -342,6 +362,8 @@ def read_motor(table: LocatedTable, row_index: int, section: tuple[str, SourceRe
     text of a column reads as, so a text repeated down a column is read and validated once.
     """
     plans = _column_plans(table) if plans is None else plans
+    # Values are shared by every row with the same cell text and are never changed in place
+    # (a conductor amended from other columns is copied first: see _attach_conductor_extras).
     grid = table.grid
     row_number = grid.row_numbers[row_index]
     cells = grid.rows[row_index]
@@ -382,10 +404,10 @@ def read_motor(table: LocatedTable, row_index: int, section: tuple[str, SourceRe
         if reader.merge:
             for key, value, ok in reading.values:
                 if key not in record:
-                    record[key], columns[key], valid[key] = _own(value), plan.letter, ok
+                    record[key], columns[key], valid[key] = value, plan.letter, ok
         else:
             (key, value, ok), = reading.values
-            record[key], columns[key], valid[key] = _own(value), plan.letter, ok
+            record[key], columns[key], valid[key] = value, plan.letter, ok
     sources = CellSources(row_source, columns)
     if _attach_conductor_extras(table, cells, row_source, record, findings):
         valid.pop("conductor", None)  # amended from other columns: validated as it now is
@@ -421,6 +443,10 @@ def _cell_finding(plan: _ColumnPlan, row_source: SourceRef, text: str, reading: 
 def _attach_conductor_extras(table, cells, row_source, record, findings) -> bool:
     """Fold separate bond/ground and raceway columns into the conductor record; True if it changed."""
     conductor = record.get("conductor")
+    if conductor is None or not any(cells[col.index] for col in table.columns if col.field in ("bond", "raceway")):
+        return False
+    # The conductor value is shared with other rows of the same text: this row's is a copy.
+    conductor = record["conductor"] = {k: (list(v) if isinstance(v, list) else v) for k, v in conductor.items()}
     changed = False
     for col in table.columns:
         if col.field not in ("bond", "raceway") or conductor is None:

@@ -37,7 +37,7 @@ from contextvars import ContextVar
 from dataclasses import dataclass
 
 from checker.ingest.feeders import FeederRow, group_key
-from checker.ingest.normalize import frozen_value
+from checker.ingest.normalize import FrozenValues
 from checker.model import FeederReview, Finding, Motor, SourceRef, Status
 from checker.rules.common import ReviewOptions, calc, conductor_label, num
 from checker.rules.conductors import table_ampacity
@@ -367,9 +367,10 @@ class _LimitsMemo:
         self.found: dict = {}
         self.parts: dict = {}    # (column, fla missing, id(limits)) -> (limits, _parts(...))
         self.direct = False
+        self.frozen = FrozenValues()
 
     def _key(self, record: dict, column: str) -> tuple:
-        return column, *[frozen_value(record.get(field, _ABSENT)) for field in self.fields]
+        return column, *[self.frozen(record.get(field, _ABSENT)) for field in self.fields]
 
     def __call__(self, motor_record: dict, column: str) -> BranchLimits:
         if self.direct:
