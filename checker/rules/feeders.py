@@ -368,9 +368,17 @@ class _LimitsMemo:
         self.parts: dict = {}    # (column, fla missing, id(limits)) -> (limits, _parts(...))
         self.direct = False
         self.frozen = FrozenValues()
+        self.tails: dict[int, tuple] = {}  # id(record) -> (record, fields, their frozen values)
 
     def _key(self, record: dict, column: str) -> tuple:
-        return column, *[self.frozen(record.get(field, _ABSENT)) for field in self.fields]
+        # A motor is looked up once per candidate device column: its values are frozen once.
+        known = self.tails.get(id(record))
+        if known is None or known[0] is not record or known[1] is not self.fields:
+            tail = tuple([self.frozen(record.get(field, _ABSENT)) for field in self.fields])
+            self.tails[id(record)] = (record, self.fields, tail)
+        else:
+            tail = known[2]
+        return column, tail
 
     def __call__(self, motor_record: dict, column: str) -> BranchLimits:
         if self.direct:
