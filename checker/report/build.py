@@ -269,6 +269,30 @@ def motor_dict(motor_review: model.MotorReview,
     }
 
 
+class WrittenApart:
+    """Set on a :class:`MotorDicts` (``apart``) while ``report/write.py`` writes its motors itself,
+    into the JSON and HTML files at once: the two writers then give :data:`MOTORS_HERE` where
+    the motors go instead of writing them. ``catalogue`` is the HTML page's numbering of distinct
+    findings, shared with the motor writer."""
+
+    __slots__ = ("catalogue",)
+
+    def __init__(self, catalogue: Any) -> None:
+        self.catalogue = catalogue
+
+
+class _MotorsHere(str):
+    """The marker a writer gives where the motors go (see :class:`WrittenApart`)."""
+
+    __slots__ = ()
+
+    def __html__(self) -> str:  # passes through the page template as it is
+        return self
+
+
+MOTORS_HERE = _MotorsHere("\x00motors written here\x00")
+
+
 class MotorDicts(Sequence):
     """``report["motors"]`` built one motor at a time: each read makes that motor's dict anew.
 
@@ -282,9 +306,24 @@ class MotorDicts(Sequence):
         self._reviews = reviews
         self._shared = shared
         self._statuses: tuple[list[str], list[str]] | None = None  # the reviews never change
+        self.apart: WrittenApart | None = None
 
     def __len__(self) -> int:
         return len(self._reviews)
+
+    def shared_parts(self) -> Iterator[dict[str, Any]]:
+        """The shared part of every finding of every motor, in report order (what the
+        ``FindingEntry.shared`` of each motor's findings will be)."""
+        shared = self._shared
+        for review in self._reviews:
+            for finding in (*review.motor.input_findings, *review.findings):
+                known = shared.get(id(finding))
+                if known is None:
+                    known = shared[id(finding)] = (finding, _shared_part(finding))
+                yield known[1]
+
+    def motor_dict(self, index: int) -> dict[str, Any]:
+        return motor_dict(self._reviews[index], self._shared)
 
     def __getitem__(self, index):
         if isinstance(index, slice):
@@ -322,6 +361,7 @@ class _MotorDictsBranch(MotorDicts):
     def __init__(self, source: MotorDicts, items: Iterator[dict[str, Any]]) -> None:
         super().__init__(source._reviews, source._shared)
         self._statuses = source._statuses
+        self.apart = source.apart
         self._items = items
 
     def __iter__(self) -> Iterator[dict[str, Any]]:

@@ -4,7 +4,9 @@ from __future__ import annotations
 import os
 import stat
 import tempfile
-from collections.abc import Iterable
+from collections.abc import Iterable, Iterator
+from contextlib import contextmanager
+from typing import TextIO
 from pathlib import Path
 
 # Mode for a new report file: readable by others like any document (the temp file starts at 0600).
@@ -30,20 +32,45 @@ def write_atomic_chunks(path: Path, chunks: Iterable[str]) -> None:
 
 
 _DONE = object()
+# Pieces are gathered and written about this many characters at a time: a page template gives
+# hundreds of thousands of small pieces, and each write to a text stream has its own cost.
 _GATHER_CHARS = 1 << 18
 
 
-def write_atomic_together(targets: list[tuple[Path, Iterable[str]]]) -> None:
-    """Write several files from their pieces, taking one piece of each in turn.
+class GatheredWriter:
+    """A text stream's ``write``, gathering small pieces into large writes."""
 
-    Turn by turn, producers that read the same sequence (the report's motors, built one at a
-    time) stay a few items apart, so each item is built once and dropped soon. Every file is
-    written to a temporary file first and renamed over its path only when all are complete;
-    on an error none is replaced and the temporary files are removed.
+    __slots__ = ("_pending", "_size", "stream")
+
+    def __init__(self, stream: TextIO) -> None:
+        self.stream = stream
+        self._pending: list[str] = []
+        self._size = 0
+
+    def write(self, piece: str) -> None:
+        self._pending.append(piece)
+        self._size += len(piece)
+        if self._size >= _GATHER_CHARS:
+            self.flush()
+
+    def flush(self) -> None:
+        if self._pending:
+            self.stream.write("".join(self._pending))
+            self._pending, self._size = [], 0
+
+
+@contextmanager
+def atomic_text_files(paths: list[Path]) -> Iterator[list[GatheredWriter]]:
+    """Writers for several UTF-8 files that appear, all together, only if the block completes.
+
+    Each file is written to a temporary file beside it, flushed to disk and renamed over its
+    path (``os.replace`` is atomic on one file system) once every file is complete. On an error
+    none is replaced and the temporary files are removed. Parent directories are created; an
+    existing file keeps its mode.
     """
     opened = []
     try:
-        for path, chunks in targets:
+        for path in paths:
             path = Path(path)
             path.parent.mkdir(parents=True, exist_ok=True)
             try:
@@ -52,26 +79,10 @@ def write_atomic_together(targets: list[tuple[Path, Iterable[str]]]) -> None:
                 mode = NEW_FILE_MODE
             handle, temp_name = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
             stream = os.fdopen(handle, "w", encoding="utf-8", newline="", buffering=1 << 20)
-            opened.append((path, mode, temp_name, stream, iter(chunks)))
-        # Pieces are gathered and written some 256 KiB at a time: a page template gives hundreds of
-        # thousands of small pieces, and each write to a text stream has its own cost.
-        pending: list[list[str]] = [[] for _ in opened]
-        sizes = [0] * len(opened)
-        active = list(range(len(opened)))
-        while active:
-            for number in list(active):
-                chunk = next(opened[number][4], _DONE)
-                if chunk is _DONE:
-                    active.remove(number)
-                    opened[number][3].write("".join(pending[number]))
-                    pending[number] = []
-                    continue
-                pending[number].append(chunk)
-                sizes[number] += len(chunk)
-                if sizes[number] >= _GATHER_CHARS:
-                    opened[number][3].write("".join(pending[number]))
-                    pending[number], sizes[number] = [], 0
-        for _, _, _, stream, _ in opened:
+            opened.append((path, mode, temp_name, stream, GatheredWriter(stream)))
+        yield [writer for *_, writer in opened]
+        for _, _, _, stream, writer in opened:
+            writer.flush()
             stream.flush()
             os.fsync(stream.fileno())
             stream.close()
@@ -88,6 +99,24 @@ def write_atomic_together(targets: list[tuple[Path, Iterable[str]]]) -> None:
         raise
     for directory in dict.fromkeys(path.parent for path, *_ in opened):
         _sync_directory(directory)
+
+
+def write_atomic_together(targets: list[tuple[Path, Iterable[str]]]) -> None:
+    """Write several files from their pieces, taking one piece of each in turn (see
+    :func:`atomic_text_files`: all files are replaced together or none is).
+
+    Turn by turn, producers that read the same sequence stay a few items apart, so each item
+    is built once and dropped soon.
+    """
+    with atomic_text_files([path for path, _ in targets]) as writers:
+        active = [(writer, iter(chunks)) for writer, (_, chunks) in zip(writers, targets)]
+        while active:
+            for item in list(active):
+                chunk = next(item[1], _DONE)
+                if chunk is _DONE:
+                    active.remove(item)
+                else:
+                    item[0].write(chunk)
 
 
 def _sync_directory(directory: Path) -> None:

@@ -20,7 +20,7 @@ from typing import Any
 
 from markupsafe import Markup
 
-from checker.report.build import MOTORS_PER_PIECE, shared_part
+from checker.report.build import MOTORS_HERE, MOTORS_PER_PIECE, MotorDicts, shared_part
 
 # Worst first; the labels shown for each status.
 STATUS_LABELS = {"fail": "FAIL", "needs-info": "NEEDS INFO", "pass": "PASS"}
@@ -48,7 +48,7 @@ def format_number(value: Any) -> str:
 _ESCAPES = str.maketrans({"&": "&amp;", "<": "&lt;", ">": "&gt;", '"': "&#34;", "'": "&#39;"})
 
 
-def _e(value: Any) -> str:
+def escape_text(value: Any) -> str:
     """``value`` as HTML text, escaped as markupsafe escapes it (most cells need nothing: checked first)."""
     text = value if value.__class__ is str else ("" if value is None else str(value))
     if "&" in text or "<" in text or ">" in text or '"' in text or "'" in text:
@@ -59,7 +59,7 @@ def _e(value: Any) -> str:
 def _status(value: Any) -> tuple[str, str]:
     """(class suffix, label) of a status; an unknown status is shown as given, escaped."""
     text = str(value)
-    return _e(text), _e(STATUS_LABELS.get(text, text.upper()))
+    return escape_text(text), escape_text(STATUS_LABELS.get(text, text.upper()))
 
 
 def working_html(finding: Mapping[str, Any]) -> str:
@@ -67,20 +67,24 @@ def working_html(finding: Mapping[str, Any]) -> str:
     parts = []
     limit, provided, unit = finding.get("limit"), finding.get("provided"), finding.get("unit") or ""
     if limit is not None or provided is not None:
-        parts.append(f'<p class="lp">Limit {_e(format_number(limit))} {_e(unit)} · provided '
-                     f'{_e(format_number(provided))} {_e(unit)}</p>')
+        parts.append(f'<p class="lp">Limit {escape_text(format_number(limit))} {escape_text(unit)} · provided '
+                     f'{escape_text(format_number(provided))} {escape_text(unit)}</p>')
     trail = finding.get("trail") or []
     if trail:
-        parts.append('<ol class="trail">' + "".join(f"<li>{_e(step)}</li>" for step in trail) + "</ol>")
+        parts.append('<ol class="trail">' + "".join(f"<li>{escape_text(step)}</li>" for step in trail) + "</ol>")
     assumptions = finding.get("assumptions") or []
     if assumptions:
         parts.append('<p class="assume-h">Assumed</p><ul class="assume">'
-                     + "".join(f"<li>{_e(item)}</li>" for item in assumptions) + "</ul>")
+                     + "".join(f"<li>{escape_text(item)}</li>" for item in assumptions) + "</ul>")
     return "".join(parts)
 
 
-class _Catalogue:
-    """Distinct findings in order of first appearance: id, motors counted, rendered line head."""
+class Catalogue:
+    """Distinct findings in order of first appearance: id, motors counted, rendered line head.
+
+    Counted as the motors are written, or all at once beforehand (:meth:`counted_for`) when
+    another process writes some of the motors with the same numbers.
+    """
 
     def __init__(self, appendix_ids: set[str]) -> None:
         self.appendix_ids = appendix_ids
@@ -88,6 +92,16 @@ class _Catalogue:
         self.entries: list[dict[str, Any]] = []  # the shared parts, in number order
         self.counts: list[int] = []
         self.heads: list[str] = []
+        self.precounted = False
+
+    @classmethod
+    def counted_for(cls, motors: MotorDicts, appendix_ids: set[str]) -> Catalogue:
+        """Every finding of ``motors`` numbered and counted, as writing them all would."""
+        catalogue = cls(appendix_ids)
+        for part in motors.shared_parts():
+            catalogue.number(part)
+        catalogue.precounted = True
+        return catalogue
 
     def number(self, finding: Mapping[str, Any]) -> int:
         """Number of this finding's entry ('w-<n>'), adding it on first sight."""
@@ -98,8 +112,10 @@ class _Catalogue:
             number = self.ids[key] = len(self.entries) + 1
             self.entries.append(part)
             self.counts.append(0)
-            kind = _LINE_CLASS.get(str(part.get("status")), f' class="st-{_e(part.get("status"))}"')
-            self.heads.append(f'<li{kind}><a href="#w-{number}">{_e(part.get("rule"))}</a> {_e(part.get("message"))}')
+            kind = _LINE_CLASS.get(str(part.get("status")), f' class="st-{escape_text(part.get("status"))}"')
+            self.heads.append(f'<li{kind}><a href="#w-{number}">{escape_text(part.get("rule"))}</a> {escape_text(part.get("message"))}')
+        elif self.precounted:
+            return number
         self.counts[number - 1] += 1
         return number
 
@@ -108,15 +124,15 @@ class _Catalogue:
         for number, (part, count) in enumerate(zip(self.entries, self.counts), start=1):
             status, label = _status(part.get("status"))
             check = str(part.get("check"))
-            rule = _e(part.get("rule"))
+            rule = escape_text(part.get("rule"))
             if check in self.appendix_ids:
-                rule = f'<a href="#check-{_e(anchor(check))}">{rule}</a>'
+                rule = f'<a href="#check-{escape_text(anchor(check))}">{rule}</a>'
             citation = part.get("citation")
             out.append(
                 f'<article class="work st-{status}" id="w-{number}"><p class="work-h"><span class="badge st-{status}">'
-                f'{label}</span> {rule} {_e(part.get("message"))} <span class="cnt">({count} '
+                f'{label}</span> {rule} {escape_text(part.get("message"))} <span class="cnt">({count} '
                 f'{"motor" if count == 1 else "motors"})</span></p>{working_html(part)}'
-                + (f'<p class="cite">{_e(citation)}</p>' if citation else "") + "</article>\n")
+                + (f'<p class="cite">{escape_text(citation)}</p>' if citation else "") + "</article>\n")
         return "".join(out)
 
 
@@ -130,7 +146,7 @@ def _cells_text(finding: Mapping[str, Any], sheet_prefix: str) -> str:
                 label = label[len(sheet_prefix):]
             if label not in labels:
                 labels.append(label)
-    return f" [{_e(' '.join(labels))}]" if labels else ""
+    return f" [{escape_text(' '.join(labels))}]" if labels else ""
 
 
 def _raw_text(raw: Any, shown: tuple[Any, ...]) -> str:
@@ -138,7 +154,7 @@ def _raw_text(raw: Any, shown: tuple[Any, ...]) -> str:
     the texts already in the motor's summary line (its tag and description)."""
     if not isinstance(raw, Mapping) or not raw:
         return ""
-    pairs = " · ".join(f"{_e(str(header).rsplit(' / ', 1)[-1])}: {_e(text)}" for header, text in raw.items()
+    pairs = " · ".join(f"{escape_text(str(header).rsplit(' / ', 1)[-1])}: {escape_text(text)}" for header, text in raw.items()
                        if text not in shown)
     return f'<p class="raw">As submitted: {pairs}</p>' if pairs else ""
 
@@ -151,18 +167,25 @@ class MotorsSection:
     def __init__(self, motors: Iterable[Any], appendix_ids: set[str]) -> None:
         self.motors = motors
         self.appendix_ids = appendix_ids
-        self.catalogue = _Catalogue(appendix_ids)
+        self.catalogue = Catalogue(appendix_ids)
         self.done = False
 
     def __iter__(self) -> Iterator[Markup]:
         """The blocks, a few dozen motors to a piece (each piece the template writes has a cost)."""
-        self.catalogue = _Catalogue(self.appendix_ids)
+        apart = getattr(self.motors, "apart", None)
+        if apart is not None:  # report/write.py writes the blocks, numbering in this catalogue
+            self.catalogue = apart.catalogue
+            self.catalogue.appendix_ids = self.appendix_ids
+            self.done = True
+            yield MOTORS_HERE
+            return
+        self.catalogue = Catalogue(self.appendix_ids)
         written = False
         blocks: list[str] = []
         for index, motor in enumerate(self.motors, start=1):
             if isinstance(motor, Mapping):
                 written = True
-                blocks.append(_motor_block(motor, index, self.catalogue))
+                blocks.append(motor_block(motor, index, self.catalogue))
                 if len(blocks) == MOTORS_PER_PIECE:
                     yield Markup("".join(blocks))
                     blocks = []
@@ -179,7 +202,8 @@ class MotorsSection:
         return Markup(self.catalogue.html())
 
 
-def _motor_block(motor: Mapping[str, Any], index: int, catalogue: _Catalogue) -> str:
+def motor_block(motor: Mapping[str, Any], index: int, catalogue: Catalogue) -> str:
+    """The ``<details>`` block of motor number ``index`` (1-based), numbering its findings in ``catalogue``."""
     status, label = _status(motor.get("status"))
     record = motor.get("record") if isinstance(motor.get("record"), Mapping) else {}
     source = motor.get("source") if isinstance(motor.get("source"), Mapping) else {}
@@ -187,9 +211,9 @@ def _motor_block(motor: Mapping[str, Any], index: int, catalogue: _Catalogue) ->
     sheet = source.get("sheet")
     sheet_prefix = f"{sheet}!" if sheet and source.get("page") is None else ""
     out = [f'<details class="motor st-{status}" id="motor-{index}"{"" if motor.get("status") == "pass" else " open"}>'
-           f'<summary><span class="badge st-{status}">{label}</span> <span class="tag">{_e(motor.get("tag"))}</span>'
-           + (f' <span class="desc">{_e(description)}</span>' if description else "")
-           + f' <span class="loc">{_e(source.get("label", ""))}</span></summary>\n']
+           f'<summary><span class="badge st-{status}">{label}</span> <span class="tag">{escape_text(motor.get("tag"))}</span>'
+           + (f' <span class="desc">{escape_text(description)}</span>' if description else "")
+           + f' <span class="loc">{escape_text(source.get("label", ""))}</span></summary>\n']
     findings = [f for f in motor.get("findings") or [] if isinstance(f, Mapping)]
     if findings:
         out.append('<ul class="fl">')
@@ -206,7 +230,7 @@ def _motor_block(motor: Mapping[str, Any], index: int, catalogue: _Catalogue) ->
     not_run = [n for n in motor.get("not_run") or [] if isinstance(n, Mapping)]
     if not_run:
         # The reasons are in the summary's "checks that could not run" table; per motor only its figure.
-        items = "; ".join(_e(n.get("check")) + (f' ({_e(n.get("detail"))})' if n.get("detail") else "")
+        items = "; ".join(escape_text(n.get("check")) + (f' ({escape_text(n.get("detail"))})' if n.get("detail") else "")
                           for n in not_run)
         out.append(f'<p class="nr">Could not run: {items}</p>\n')
     out.append(_raw_text(motor.get("raw"), (motor.get("tag"), description)))

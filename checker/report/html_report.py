@@ -17,9 +17,10 @@ from pathlib import Path
 from typing import Any
 
 from jinja2 import Environment, FileSystemLoader, StrictUndefined
+from markupsafe import Markup
 
 from checker.report.build import MotorDicts
-from checker.report.html_motors import MotorsSection, anchor, format_number
+from checker.report.html_motors import MotorsSection, anchor, escape_text, format_number
 
 TEMPLATES_DIR = Path(__file__).resolve().parent / "templates"
 TEMPLATE_NAME = "review.html.j2"
@@ -58,6 +59,17 @@ def cell_text(value: Any) -> str:
     return str(value)
 
 
+def list_items(items: Any) -> Markup:
+    """``<li>`` lines of a list (a feeder's working runs to a line per motor: joined here, not
+    looped in the template), each item escaped."""
+    return Markup("".join([f"<li>{escape_text(item)}</li>\n" for item in _list(items)]))
+
+
+def tag_list(motors: Any) -> Markup:
+    """The tags of a group's motors, comma-separated and escaped."""
+    return Markup(", ".join([escape_text(motor.get("tag")) for motor in _list(motors) if isinstance(motor, dict)]))
+
+
 @lru_cache(maxsize=1)
 def _environment() -> Environment:
     env = Environment(
@@ -69,7 +81,8 @@ def _environment() -> Environment:
         keep_trailing_newline=True,
     )
     env.filters.update(
-        csp_hash=csp_hash, num=format_number, anchor=anchor, status_label=status_label, cell_text=cell_text
+        csp_hash=csp_hash, num=format_number, anchor=anchor, status_label=status_label, cell_text=cell_text,
+        list_items=list_items, tag_list=tag_list,
     )
     return env
 
@@ -107,6 +120,11 @@ def verification_pairs(ruleset: dict[str, Any]) -> list[tuple[str, str]]:
     return [("", cell_text(given))]
 
 
+def appendix_ids(report: dict[str, Any]) -> set[str]:
+    """Ids of the checks the page's appendix describes (rule links point there)."""
+    return {str(entry.get("id")) for entry in _list(report.get("checks")) if isinstance(entry, dict)}
+
+
 def _context(report: dict[str, Any]) -> dict[str, Any]:
     ruleset = _mapping(report.get("ruleset"))
     given_input = _mapping(report.get("input"))
@@ -116,7 +134,7 @@ def _context(report: dict[str, Any]) -> dict[str, Any]:
     columns, rows = table_grid(_list(report.get("tables")))
     by_status = _mapping(summary.get("motors_by_status"))
     filter_counts = {"all": len(motors), **{key: by_status.get(key, 0) for key in STATUS_LABELS}}
-    appendix_ids = {str(entry.get("id")) for entry in checks}
+    appendix = appendix_ids(report)
     return {
         "report": report,
         "tool": _mapping(report.get("tool")),
@@ -128,11 +146,11 @@ def _context(report: dict[str, Any]) -> dict[str, Any]:
         "cautions": _list(report.get("cautions")),
         "notes": _list(report.get("notes")),
         "motors": motors,
-        "motors_section": MotorsSection(motors, appendix_ids),
+        "motors_section": MotorsSection(motors, appendix),
         "skipped": _list(report.get("skipped")),
         "feeders": [entry for entry in _list(report.get("feeders")) if isinstance(entry, dict)],
         "checks": checks,
-        "appendix_ids": appendix_ids,
+        "appendix_ids": appendix,
         "verification": verification_pairs(ruleset),
         "table_columns": columns,
         "table_rows": rows,

@@ -9,7 +9,7 @@ from typing import Any
 
 import orjson
 
-from checker.report.build import MOTORS_PER_PIECE, MotorDicts
+from checker.report.build import MOTORS_HERE, MOTORS_PER_PIECE, MotorDicts
 
 SCHEMAS_DIR = Path(__file__).resolve().parents[2] / "schemas"
 REVIEW_SCHEMA = SCHEMAS_DIR / "review.schema.json"
@@ -52,6 +52,11 @@ def iter_json(report: dict[str, Any]) -> Iterator[str]:
                                               and all(isinstance(item, dict) for item in value)):
             if not len(value):
                 yield head + "[]"
+                continue
+            if getattr(value, "apart", None) is not None:  # written by report/write.py
+                yield head + "[\n    "
+                yield MOTORS_HERE
+                yield "\n  ]"
                 continue
             out = [head, "[\n    "]
             for index, item in enumerate(value):
