@@ -73,8 +73,8 @@ def _cmd_review(args) -> int:
     from checker.progress import Progress
     from checker.report.build import review_to_dict
     from checker.report.files import write_atomic
-    from checker.report.write import write_reports
     from checker.report.text_summary import summary_text
+    from checker.report.write import write_reports
     from checker.review import review_schedule
     from checker.rules.common import ReviewOptions
 

@@ -6,8 +6,8 @@ import stat
 import tempfile
 from collections.abc import Iterable, Iterator
 from contextlib import contextmanager
-from typing import TextIO
 from pathlib import Path
+from typing import TextIO
 
 # Mode for a new report file: readable by others like any document (the temp file starts at 0600).
 NEW_FILE_MODE = 0o644

@@ -16,6 +16,7 @@ escapes it; nothing submitted is trusted.
 from __future__ import annotations
 
 from collections.abc import Iterable, Iterator, Mapping
+from functools import lru_cache
 from typing import Any
 
 from markupsafe import Markup
@@ -92,6 +93,7 @@ class Catalogue:
         self.entries: list[dict[str, Any]] = []  # the shared parts, in number order
         self.counts: list[int] = []
         self.heads: list[str] = []
+        self.workings: dict[int, str] = {}  # number -> inline working of a failed finding
         self.precounted = False
 
     @classmethod
@@ -119,6 +121,15 @@ class Catalogue:
         self.counts[number - 1] += 1
         return number
 
+    def working_block(self, number: int, finding: Mapping[str, Any]) -> str:
+        """The inline working of a failed finding (entry ``number``), written once per entry."""
+        if shared_part(finding) is None or self.entries[number - 1] is not shared_part(finding):
+            return f'<div class="wk">{working_html(finding)}</div>'  # changed by a caller: its own
+        block = self.workings.get(number)
+        if block is None:
+            block = self.workings[number] = f'<div class="wk">{working_html(finding)}</div>'
+        return block
+
     def html(self) -> str:
         out = []
         for number, (part, count) in enumerate(zip(self.entries, self.counts), start=1):
@@ -138,15 +149,21 @@ class Catalogue:
 
 def _cells_text(finding: Mapping[str, Any], sheet_prefix: str) -> str:
     """' [D19 J19]': the cells a finding read, without the sheet name when it is the motor's own."""
-    labels = []
-    for cell in finding.get("cells") or []:
-        if cell.__class__ is dict or isinstance(cell, Mapping):
-            label = str(cell.get("label", ""))
-            if sheet_prefix and label.startswith(sheet_prefix):
-                label = label[len(sheet_prefix):]
-            if label not in labels:
-                labels.append(label)
-    return f" [{escape_text(' '.join(labels))}]" if labels else ""
+    cells = finding.get("cells") or []
+    labels = dict.fromkeys([str(cell.get("label", "")) for cell in cells
+                            if cell.__class__ is dict or isinstance(cell, Mapping)])
+    if not labels:
+        return ""
+    if sheet_prefix:
+        cut = len(sheet_prefix)
+        labels = dict.fromkeys([label[cut:] if label.startswith(sheet_prefix) else label for label in labels])
+    return f" [{escape_text(' '.join(labels))}]"
+
+
+@lru_cache(maxsize=4096)
+def _short_header(header: Any) -> str:
+    """A column header's last level, escaped ('MOTOR / HP' -> 'HP'): the same for every row."""
+    return escape_text(str(header).rsplit(" / ", 1)[-1])
 
 
 def _raw_text(raw: Any, shown: tuple[Any, ...]) -> str:
@@ -154,8 +171,8 @@ def _raw_text(raw: Any, shown: tuple[Any, ...]) -> str:
     the texts already in the motor's summary line (its tag and description)."""
     if not isinstance(raw, Mapping) or not raw:
         return ""
-    pairs = " · ".join(f"{escape_text(str(header).rsplit(' / ', 1)[-1])}: {escape_text(text)}" for header, text in raw.items()
-                       if text not in shown)
+    pairs = " · ".join([f"{_short_header(header)}: {escape_text(text)}" for header, text in raw.items()
+                        if text not in shown])
     return f'<p class="raw">As submitted: {pairs}</p>' if pairs else ""
 
 
@@ -222,7 +239,7 @@ def motor_block(motor: Mapping[str, Any], index: int, catalogue: Catalogue) -> s
             out.append(catalogue.heads[number - 1])
             out.append(_cells_text(finding, sheet_prefix))
             if finding.get("status") == "fail":
-                out.append(f'<div class="wk">{working_html(finding)}</div>')
+                out.append(catalogue.working_block(number, finding))
             out.append("</li>\n")
         out.append("</ul>\n")
     else:
