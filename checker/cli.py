@@ -50,26 +50,12 @@ def build_parser() -> argparse.ArgumentParser:
                         help="make unstated duty, motor type or starting method needs-info instead of assuming "
                              "(default: strict when ./motorcheck.toml says assumptions = false)")
     review.add_argument("--quiet", action="store_true", help="print only the counts line and report paths")
-    review.add_argument("--jobs", type=_positive_int, default=None, metavar="N",
-                        help="processes for a large schedule (default: 2 where two CPUs are free, else 1; "
-                             "also MOTORCHECK_JOBS); the reports are the same either way")
     sub.add_parser("codes", help="list the rulesets with edition and how many values are verified",
                    description="List the available rulesets.")
     return parser
 
 
-def _positive_int(text: str) -> int:
-    try:
-        value = int(text)
-    except ValueError:
-        raise argparse.ArgumentTypeError(f"expected a whole number of processes, got {text!r}") from None
-    if value < 1:
-        raise argparse.ArgumentTypeError(f"expected 1 or more processes, got {value}")
-    return value
-
-
 def _cmd_review(args) -> int:
-    from checker.parallel import available_jobs
     from checker.progress import Progress
     from checker.report.build import review_to_dict
     from checker.report.files import write_atomic
@@ -99,7 +85,7 @@ def _cmd_review(args) -> int:
         outputs = [json_path, html_path] + ([args.csv] if args.csv else [])
         _refuse_overwriting_input(args.schedule, outputs)
         progress.stage("writing the reports")
-        write_reports(report, json_path, html_path, jobs=args.jobs or available_jobs())
+        write_reports(report, json_path, html_path)
         if args.csv:
             from checker.report.csv_report import render_csv
             write_atomic(args.csv, render_csv(report))

@@ -5,7 +5,8 @@
 * the cached per-field schema check (``normalize.record_valid``) agrees with the JSON-schema
   validator on any record;
 * the lazily built report (``review_to_dict(..., lazy=True)``) and the streamed JSON and HTML are
-  the same as the eager report and its one-piece renderings;
+  the same as the eager report and its one-piece renderings, and so are the files the CLI writes
+  (``report.write``, motors written straight from the review);
 * the progress line appears only on a terminal, after its delay, and is erased.
 
 All schedules here are invented (the demo, the test fixtures and the benchmark generator).
@@ -33,6 +34,7 @@ from checker.report.build import MotorDicts, review_to_dict
 from checker.report.html_report import iter_html, render_html
 from checker.report.json_report import dumps, iter_json
 from checker.report.text_summary import summary_text
+from checker.report.write import write_reports
 from checker.review import _CheckMemo, review_schedule
 from checker.rules import registry
 
@@ -162,6 +164,35 @@ def test_lazy_report_and_streams_equal_the_eager_ones(schedule):
     assert "".join(iter_html(lazy)) == render_html(eager)
     for lines in (0, 5, 40):
         assert summary_text(lazy, max_lines=lines) == summary_text(eager, max_lines=lines)
+
+
+@pytest.fixture(params=["northfield-chromium.pdf", "e601-motor-schedule.pdf", "hostile-cells"])
+def more_schedules(request, tmp_path) -> Path:
+    """PDF tables (cells labelled by page and table) and cells that must be escaped."""
+    if request.param != "hostile-cells":
+        return ROOT / "fixtures" / "pdf" / request.param
+    path = tmp_path / "hostile.csv"
+    path.write_text("TAG,DESCRIPTION,HP,VOLTS,FLA,CONDUCTORS,OCPD,REMARKS\n"
+                    "<script>alert(1)</script>,\"pump & \"\"fan\"\" <b>\",10,575,11,3#12 RW90,25A CB,=1+1\n"
+                    "P-2,'quoted' é ünïcode \u2028 line,7.5,575,9,3#14,20 A TD fuse,\n"
+                    "P-3,no current,5,575,,3#14,,\n", encoding="utf-8")
+    return path
+
+
+def _files_equal_the_renderings(review, tmp_path):
+    eager = review_to_dict(review, "t")
+    write_reports(review_to_dict(review, "t", lazy=True), tmp_path / "r.json", tmp_path / "r.html")
+    assert (tmp_path / "r.json").read_bytes() == dumps(eager).encode("utf-8")
+    assert (tmp_path / "r.html").read_bytes() == render_html(eager).encode("utf-8")
+    assert not [p.name for p in tmp_path.iterdir() if p.name.endswith(".tmp")]  # no temporary file left
+
+
+def test_written_files_equal_the_eager_renderings(schedule, tmp_path):
+    _files_equal_the_renderings(review_schedule(schedule), tmp_path)
+
+
+def test_written_files_equal_the_eager_renderings_for_pdf_and_hostile_cells(more_schedules, tmp_path):
+    _files_equal_the_renderings(review_schedule(more_schedules), tmp_path)
 
 
 def test_json_shows_a_finding_changed_after_the_report_was_built():

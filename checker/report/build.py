@@ -11,7 +11,6 @@ from collections.abc import Iterable, Iterator, Mapping, Sequence
 from datetime import date, datetime, time
 from enum import Enum
 from functools import lru_cache
-from itertools import tee
 from pathlib import PurePath, PurePosixPath, PureWindowsPath
 from typing import Any
 
@@ -28,9 +27,7 @@ STATUS_ORDER: tuple[str, ...] = (
     model.Status.PASS.value,
 )
 
-# Motors per piece of text that a report writer yields. Two writers take one piece each in turn
-# (files.write_atomic_together) and motors one has read wait in memory for the other, so both
-# writers use this same count and read the motors in step.
+# Motors per piece of text that a report writer yields (each piece written has its own cost).
 MOTORS_PER_PIECE = 32
 
 # Limits and provided values are printed to 3 decimals; more would only show float noise.
@@ -311,19 +308,13 @@ class MotorDicts(Sequence):
     def __len__(self) -> int:
         return len(self._reviews)
 
-    def shared_parts(self) -> Iterator[dict[str, Any]]:
-        """The shared part of every finding of every motor, in report order (what the
-        ``FindingEntry.shared`` of each motor's findings will be)."""
-        shared = self._shared
-        for review in self._reviews:
-            for finding in (*review.motor.input_findings, *review.findings):
-                known = shared.get(id(finding))
-                if known is None:
-                    known = shared[id(finding)] = (finding, _shared_part(finding))
-                yield known[1]
+    def review(self, index: int) -> model.MotorReview:
+        return self._reviews[index]
 
-    def motor_dict(self, index: int) -> dict[str, Any]:
-        return motor_dict(self._reviews[index], self._shared)
+    @property
+    def shared(self) -> dict[int, tuple[model.Finding, dict[str, Any]]]:
+        """Finding id -> (finding, shared part), as the motors' dicts use them."""
+        return self._shared
 
     def __getitem__(self, index):
         if isinstance(index, slice):
@@ -352,33 +343,6 @@ class MotorDicts(Sequence):
                 finding_statuses.extend(statuses)
             self._statuses = motor_statuses, finding_statuses
         return self._statuses
-
-
-class _MotorDictsBranch(MotorDicts):
-    """One reader's turn at a pass over the motors shared by several readers (see
-    :func:`for_writers`); iterate it once."""
-
-    def __init__(self, source: MotorDicts, items: Iterator[dict[str, Any]]) -> None:
-        super().__init__(source._reviews, source._shared)
-        self._statuses = source._statuses
-        self.apart = source.apart
-        self._items = items
-
-    def __iter__(self) -> Iterator[dict[str, Any]]:
-        return self._items
-
-
-def for_writers(report: dict[str, Any], count: int) -> list[dict[str, Any]]:
-    """``count`` views of a lazy report whose motors are built once for all of them.
-
-    Each view is read once, by its own writer; the writers must advance together (see
-    ``files.write_atomic_together``), as motors one has read and another has not are kept.
-    A report with a list of motors is simply repeated.
-    """
-    motors = report.get("motors")
-    if not isinstance(motors, MotorDicts):
-        return [report] * count
-    return [{**report, "motors": _MotorDictsBranch(motors, branch)} for branch in tee(iter(motors), count)]
 
 
 def skipped_dict(row: model.SkippedRow) -> dict[str, Any]:

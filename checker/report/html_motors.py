@@ -21,7 +21,7 @@ from typing import Any
 
 from markupsafe import Markup
 
-from checker.report.build import MOTORS_HERE, MOTORS_PER_PIECE, MotorDicts, shared_part
+from checker.report.build import MOTORS_HERE, MOTORS_PER_PIECE, shared_part
 
 # Worst first; the labels shown for each status.
 STATUS_LABELS = {"fail": "FAIL", "needs-info": "NEEDS INFO", "pass": "PASS"}
@@ -81,11 +81,7 @@ def working_html(finding: Mapping[str, Any]) -> str:
 
 
 class Catalogue:
-    """Distinct findings in order of first appearance: id, motors counted, rendered line head.
-
-    Counted as the motors are written, or all at once beforehand (:meth:`counted_for`) when
-    another process writes some of the motors with the same numbers.
-    """
+    """Distinct findings in order of first appearance: id, motors counted, rendered line head."""
 
     def __init__(self, appendix_ids: set[str]) -> None:
         self.appendix_ids = appendix_ids
@@ -94,16 +90,6 @@ class Catalogue:
         self.counts: list[int] = []
         self.heads: list[str] = []
         self.workings: dict[int, str] = {}  # number -> inline working of a failed finding
-        self.precounted = False
-
-    @classmethod
-    def counted_for(cls, motors: MotorDicts, appendix_ids: set[str]) -> Catalogue:
-        """Every finding of ``motors`` numbered and counted, as writing them all would."""
-        catalogue = cls(appendix_ids)
-        for part in motors.shared_parts():
-            catalogue.number(part)
-        catalogue.precounted = True
-        return catalogue
 
     def number(self, finding: Mapping[str, Any]) -> int:
         """Number of this finding's entry ('w-<n>'), adding it on first sight."""
@@ -116,14 +102,12 @@ class Catalogue:
             self.counts.append(0)
             kind = _LINE_CLASS.get(str(part.get("status")), f' class="st-{escape_text(part.get("status"))}"')
             self.heads.append(f'<li{kind}><a href="#w-{number}">{escape_text(part.get("rule"))}</a> {escape_text(part.get("message"))}')
-        elif self.precounted:
-            return number
         self.counts[number - 1] += 1
         return number
 
     def working_block(self, number: int, finding: Mapping[str, Any]) -> str:
         """The inline working of a failed finding (entry ``number``), written once per entry."""
-        if shared_part(finding) is None or self.entries[number - 1] is not shared_part(finding):
+        if self.entries[number - 1] is not (shared_part(finding) or finding):
             return f'<div class="wk">{working_html(finding)}</div>'  # changed by a caller: its own
         block = self.workings.get(number)
         if block is None:
@@ -149,15 +133,8 @@ class Catalogue:
 
 def _cells_text(finding: Mapping[str, Any], sheet_prefix: str) -> str:
     """' [D19 J19]': the cells a finding read, without the sheet name when it is the motor's own."""
-    cells = finding.get("cells") or []
-    labels = dict.fromkeys([str(cell.get("label", "")) for cell in cells
-                            if cell.__class__ is dict or isinstance(cell, Mapping)])
-    if not labels:
-        return ""
-    if sheet_prefix:
-        cut = len(sheet_prefix)
-        labels = dict.fromkeys([label[cut:] if label.startswith(sheet_prefix) else label for label in labels])
-    return f" [{escape_text(' '.join(labels))}]"
+    return cells_html([str(cell.get("label", "")) for cell in finding.get("cells") or []
+                       if cell.__class__ is dict or isinstance(cell, Mapping)], sheet_prefix)
 
 
 @lru_cache(maxsize=4096)
@@ -221,38 +198,60 @@ class MotorsSection:
 
 def motor_block(motor: Mapping[str, Any], index: int, catalogue: Catalogue) -> str:
     """The ``<details>`` block of motor number ``index`` (1-based), numbering its findings in ``catalogue``."""
-    status, label = _status(motor.get("status"))
     record = motor.get("record") if isinstance(motor.get("record"), Mapping) else {}
     source = motor.get("source") if isinstance(motor.get("source"), Mapping) else {}
-    description = record.get("description")
     sheet = source.get("sheet")
     sheet_prefix = f"{sheet}!" if sheet and source.get("page") is None else ""
-    out = [f'<details class="motor st-{status}" id="motor-{index}"{"" if motor.get("status") == "pass" else " open"}>'
-           f'<summary><span class="badge st-{status}">{label}</span> <span class="tag">{escape_text(motor.get("tag"))}</span>'
-           + (f' <span class="desc">{escape_text(description)}</span>' if description else "")
-           + f' <span class="loc">{escape_text(source.get("label", ""))}</span></summary>\n']
     findings = [f for f in motor.get("findings") or [] if isinstance(f, Mapping)]
-    if findings:
+    lines = []
+    for finding in findings:
+        number = catalogue.number(finding)
+        working = catalogue.working_block(number, finding) if finding.get("status") == "fail" else ""
+        lines.append((number, _cells_text(finding, sheet_prefix), working))
+    not_run = [(n.get("check"), n.get("detail")) for n in motor.get("not_run") or [] if isinstance(n, Mapping)]
+    return block_html(index, motor.get("status"), motor.get("tag"), record.get("description"),
+                      source.get("label", ""), lines, catalogue, not_run, motor.get("raw"))
+
+
+def block_html(index: int, status_value: Any, tag: Any, description: Any, location: Any,
+               lines: list[tuple[int, str, str]], catalogue: Catalogue, not_run: list[tuple[Any, Any]],
+               raw: Any) -> str:
+    """A motor's block from its parts: finding ``lines`` are (catalogue number, cells text, inline working)."""
+    status, label = _status(status_value)
+    out = [f'<details class="motor st-{status}" id="motor-{index}"{"" if status_value == "pass" else " open"}>'
+           f'<summary><span class="badge st-{status}">{label}</span> <span class="tag">{escape_text(tag)}</span>'
+           + (f' <span class="desc">{escape_text(description)}</span>' if description else "")
+           + f' <span class="loc">{escape_text(location)}</span></summary>\n']
+    if lines:
         out.append('<ul class="fl">')
-        for finding in findings:
-            number = catalogue.number(finding)
-            out.append(catalogue.heads[number - 1])
-            out.append(_cells_text(finding, sheet_prefix))
-            if finding.get("status") == "fail":
-                out.append(catalogue.working_block(number, finding))
+        heads = catalogue.heads
+        for number, cells_text, working in lines:
+            out.append(heads[number - 1])
+            out.append(cells_text)
+            out.append(working)
             out.append("</li>\n")
         out.append("</ul>\n")
     else:
         out.append(f'<p class="empty">{NO_FINDINGS}</p>\n')
-    not_run = [n for n in motor.get("not_run") or [] if isinstance(n, Mapping)]
     if not_run:
         # The reasons are in the summary's "checks that could not run" table; per motor only its figure.
-        items = "; ".join(escape_text(n.get("check")) + (f' ({escape_text(n.get("detail"))})' if n.get("detail") else "")
-                          for n in not_run)
+        items = "; ".join(escape_text(check) + (f" ({escape_text(detail)})" if detail else "")
+                          for check, detail in not_run)
         out.append(f'<p class="nr">Could not run: {items}</p>\n')
-    out.append(_raw_text(motor.get("raw"), (motor.get("tag"), description)))
+    out.append(_raw_text(raw, (tag, description)))
     out.append("</details>\n")
     return "".join(out)
+
+
+def cells_html(labels: Iterable[str], sheet_prefix: str) -> str:
+    """' [D19 J19]' from cell labels: each once, without the sheet name when it is the motor's own."""
+    labels = dict.fromkeys(labels)
+    if not labels:
+        return ""
+    if sheet_prefix:
+        cut = len(sheet_prefix)
+        labels = dict.fromkeys([label[cut:] if label.startswith(sheet_prefix) else label for label in labels])
+    return f" [{escape_text(' '.join(labels))}]"
 
 
 def motors_html(motors: Iterable[Any], appendix_ids: set[str]) -> tuple[Markup, Markup]:

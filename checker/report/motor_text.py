@@ -1,0 +1,107 @@
+"""Each motor's JSON line and HTML block, written straight from the review.
+
+The same text as encoding ``build.motor_dict`` with ``json_report`` and rendering it with
+``html_motors.motor_block`` (tests/test_fast_paths.py holds them to it, byte for byte), without
+building that dict: a finding's shared part (everything but its cells) is encoded once for all
+the motors that share it, and each cell of a motor once for all of its findings.
+"""
+from __future__ import annotations
+
+from typing import Any
+
+import orjson
+
+from checker import model
+from checker.report.build import _shared_part as shared_part_of
+from checker.report.build import plain_record, source_dict, worst_status
+from checker.report.html_motors import Catalogue, block_html, cells_html
+from checker.report.json_report import _encode
+
+
+class MotorText:
+    """Writes motors of one review; ``shared`` is the report's map of finding id -> (finding,
+    shared part) (``MotorDicts._shared``), ``catalogue`` the page's numbering of findings."""
+
+    def __init__(self, shared: dict[int, tuple[model.Finding, dict[str, Any]]], catalogue: Catalogue) -> None:
+        self.shared = shared
+        self.catalogue = catalogue
+        self.part_json: dict[int, str] = {}  # id(part) -> its JSON up to the cells: '{"check":...,"cells":['
+
+    def _part(self, finding: model.Finding) -> dict[str, Any]:
+        known = self.shared.get(id(finding))
+        if known is None:
+            known = self.shared[id(finding)] = (finding, shared_part_of(finding))
+        return known[1]
+
+    def both(self, review: model.MotorReview, index: int) -> tuple[str, str]:
+        """(JSON object, HTML block) of motor number ``index`` (1-based)."""
+        motor = review.motor
+        findings = (*motor.input_findings, *review.findings)
+        parts = [self._part(f) for f in findings]
+        status = worst_status([part["status"] for part in parts])
+        sources = motor.sources
+        described: dict[str, tuple[str, str] | None] = {}  # field -> (label, cell JSON), None: no cell
+        cells_of = []
+        for finding in findings:
+            cells = []
+            for name in finding.fields:
+                cell = described.get(name, _UNSET)
+                if cell is _UNSET:
+                    cell = described[name] = _describe(sources, name)
+                if cell is not None:
+                    cells.append(cell)
+            cells_of.append(cells)
+        # JSON: the motor's own values, then each finding's shared part and its cells
+        head = _encode({"tag": motor.tag, "status": status, "source": source_dict(motor.source)})[:-1]
+        pieces = [head, ',"record":', _json_of(motor.record), ',"raw":', _json_of(motor.raw), ',"findings":[']
+        part_json = self.part_json
+        for number, (part, cells) in enumerate(zip(parts, cells_of)):
+            prefix = part_json.get(id(part))
+            if prefix is None:
+                prefix = part_json[id(part)] = _encode(part)[:-1] + ',"cells":['
+            pieces.append("," + prefix if number else prefix)
+            pieces.append(",".join([cell[1] for cell in cells]))
+            pieces.append("]}")
+        not_run = [{"check": item.check, "reason": item.reason, "detail": item.detail} for item in review.not_run]
+        pieces.append('],"not_run":')
+        pieces.append(_encode(not_run))
+        pieces.append("}")
+        # HTML: the same block html_motors.motor_block makes from the motor's dict
+        catalogue = self.catalogue
+        source = motor.source
+        sheet_prefix = f"{source.sheet}!" if source.sheet and source.page is None else ""
+        lines = []
+        for part, cells in zip(parts, cells_of):
+            number = catalogue.number(part)
+            working = catalogue.working_block(number, part) if part["status"] == "fail" else ""
+            lines.append((number, cells_html([cell[0] for cell in cells], sheet_prefix), working))
+        html = block_html(index, status, motor.tag, motor.record.get("description"), source.label(), lines,
+                          catalogue, [(item.check, item.detail) for item in review.not_run], motor.raw)
+        return "".join(pieces), html
+
+
+_UNSET = object()
+
+
+def _json_of(value: dict) -> str:
+    """JSON of a record or row, as ``_encode(plain_record(value))`` writes it."""
+    try:
+        return orjson.dumps(value).decode("utf-8")
+    except TypeError:  # what plain_record hands to plain
+        return _encode(plain_record(value))
+
+
+def _describe(sources: Any, name: str) -> tuple[str, str] | None:
+    """(label, JSON of ``{"field", "label", "column"}``) of a field's cell, as ``build.cells_for``
+    describes it; None when the field has no cell."""
+    if name not in sources:
+        return None
+    if sources.__class__ is model.CellSources:
+        row, column = sources.row, sources.columns[name]
+        if column.__class__ is model.SourceRef:
+            row, column = column, column.column
+        label = row.label_at(column)
+    else:
+        source = sources[name]
+        label, column = source.label(), source.column
+    return label, _encode({"field": name, "label": label, "column": column})
