@@ -262,7 +262,8 @@ def _short(text: str, limit: int = 60) -> str:
 
 
 def classify_row(cells: list[str], mapped: dict[str, str], header_texts: dict[str, str]) -> str | None:
-    """Why a row is not a motor, or None when it is one."""
+    """Why a row is not a motor, or None when it is one. ``header_texts`` are the columns' last
+    header level, in lower case."""
     filled = [c for c in cells if c]
     if not filled:
         return "blank row"
@@ -273,8 +274,9 @@ def classify_row(cells: list[str], mapped: dict[str, str], header_texts: dict[st
     if _SPARE_RE.match(mapped.get("tag", "")) or (not rated and (
             _SPARE_RE.match(mapped.get("description", "")) or (len(filled) <= 2 and _SPARE_RE.match(first)))):
         return "spare or space, not a motor"
-    repeats = [f for f, text in mapped.items() if text and header_texts.get(f, "").lower().endswith(text.lower())]
-    if len(repeats) >= 3 and len(repeats) * 2 >= len([t for t in mapped.values() if t]):
+    # header_texts are lower case (see normalize_table); a row repeating them is a header, not a motor
+    repeats = sum(1 for f, text in mapped.items() if text and header_texts.get(f, "").endswith(text.lower()))
+    if repeats >= 3 and repeats * 2 >= sum(1 for t in mapped.values() if t):
         return "repeated header row"
     if _TOTAL_RE.search(first) or _TOTAL_RE.search(mapped.get("tag", "")):
         return "total row"
@@ -333,10 +335,18 @@ class _ColumnPlan:
     cache: dict
 
 
-def _column_plans(table: LocatedTable) -> list[_ColumnPlan]:
-    return [_ColumnPlan(col, col.index, col.header or col.field, col.letter,
-                        None if col.field in ("bond", "raceway") else FIELD_READERS.get(col.field), {})
-            for col in table.columns]
+class _ColumnPlans(list):
+    """The table's column plans, and the column of a separate device type ("FUSE" / "CB"), if any."""
+
+    device_type_index: int | None = None
+
+
+def _column_plans(table: LocatedTable) -> _ColumnPlans:
+    plans = _ColumnPlans(_ColumnPlan(col, col.index, col.header or col.field, col.letter,
+                                     None if col.field in ("bond", "raceway") else FIELD_READERS.get(col.field), {})
+                         for col in table.columns)
+    plans.device_type_index = next((col.index for col in table.columns if col.field == "ocpd_type"), None)
+    return plans
 
 
 def _cell_reading(plan: _ColumnPlan, text: str) -> _CellReading:
@@ -355,7 +365,7 @@ def _cell_reading(plan: _ColumnPlan, text: str) -> _CellReading:
 
 
 def read_motor(table: LocatedTable, row_index: int, section: tuple[str, SourceRef] | None,
-               plans: list[_ColumnPlan] | None = None) -> Motor:
+               plans: _ColumnPlans | None = None) -> Motor:
     """Build and validate one motor record from a data row.
 
     ``plans`` (from ``_column_plans``, one list per table) remember what each distinct cell
@@ -374,7 +384,7 @@ def read_motor(table: LocatedTable, row_index: int, section: tuple[str, SourceRe
     raw: dict[str, str] = {}
     findings: list[Finding] = []
     formula_cells = grid.formula_cells
-    device_type = next((cells[p.index] for p in plans if p.col.field == "ocpd_type"), "")
+    device_type = cells[plans.device_type_index] if plans.device_type_index is not None else ""
     for plan in plans:
         text = cells[plan.index]
         if not text:
@@ -501,7 +511,7 @@ def normalize_table(table: LocatedTable) -> TableResult:
     """Every data row of the table becomes a motor or a skipped row."""
     result = TableResult()
     grid = table.grid
-    header_texts = {col.field: col.header.split(" / ")[-1] for col in table.columns}
+    header_texts = {col.field: col.header.split(" / ")[-1].lower() for col in table.columns}
     section: tuple[str, SourceRef] | None = None
     formula_rows = {r for r, _ in grid.formula_cells}
     plans = _column_plans(table)
@@ -513,12 +523,12 @@ def normalize_table(table: LocatedTable) -> TableResult:
         mapped = {col.field: cells[col.index] for col in table.columns}
         reason = classify_row(cells, mapped, header_texts)
         cells = grid.rows[index]
-        source = grid.source(index)
         if reason is None:
             result.motors.append(read_motor(table, index, section, plans))
             if row_number in grid.hidden_rows:
                 result.hidden_motor_rows.append(row_number)
             continue
+        source = grid.source(index)
         if reason == "section heading":
             first_col = next(i for i, c in enumerate(cells) if c)
             heading = " ".join(cells[first_col].split())
