@@ -201,15 +201,18 @@ def value_valid(name: str, value: Any) -> bool:
 
 
 class FrozenValues:
-    """``frozen_value`` that remembers the stand-in of each container it has seen, by identity.
+    """Hashable stand-ins of record values, like ``frozen_value``, but each container (dict, list)
+    stands in as a number: the same number for equal containers, never reused for another.
 
     Rows with the same cell text share one value object (each distinct text is read once per
     table and the value handed out is never changed afterwards), so a review freezes most
-    containers once. Use one instance per review, on records nothing changes while it lives.
+    containers once, by identity, and its memo keys hash a few numbers instead of nested tuples.
+    Use one instance per review, on records nothing changes while it lives.
     """
 
     def __init__(self) -> None:
-        self._known: dict[int, tuple[Any, Any]] = {}
+        self._known: dict[int, tuple[Any, int]] = {}  # id(container) -> (container, number)
+        self._numbers: dict[Any, int] = {}             # frozen_value(container) -> number
 
     def __call__(self, value: Any) -> Any:
         cls = value.__class__
@@ -220,10 +223,13 @@ class FrozenValues:
             if known is not None and known[0] is value:  # the object is held, so its id is not reused
                 return known[1]
             frozen = frozen_value(value)
+            number = self._numbers.get(frozen)
+            if number is None:
+                number = self._numbers[frozen] = len(self._numbers)  # only ever grows: never reused
             if len(self._known) >= _MAX_REMEMBERED:
                 self._known.clear()
-            self._known[id(value)] = (value, frozen)
-            return frozen
+            self._known[id(value)] = (value, number)
+            return number
         return cls, value
 
 
