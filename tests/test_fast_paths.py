@@ -166,11 +166,23 @@ def test_lazy_report_and_streams_equal_the_eager_ones(schedule):
         assert summary_text(lazy, max_lines=lines) == summary_text(eager, max_lines=lines)
 
 
-@pytest.fixture(params=["northfield-chromium.pdf", "e601-motor-schedule.pdf", "hostile-cells"])
+@pytest.fixture(params=["northfield-chromium.pdf", "e601-motor-schedule.pdf", "hostile-cells", "odd-sheet-name"])
 def more_schedules(request, tmp_path) -> Path:
-    """PDF tables (cells labelled by page and table) and cells that must be escaped."""
-    if request.param != "hostile-cells":
+    """PDF tables (cells labelled by page and table), cells that must be escaped, and a sheet
+    name with quotes, digits and markup (it is part of every cell label)."""
+    if request.param.endswith(".pdf"):
         return ROOT / "fixtures" / "pdf" / request.param
+    if request.param == "odd-sheet-name":
+        import openpyxl
+
+        book = openpyxl.Workbook()
+        sheet = book.active
+        sheet.title = 'Pumps "1" & <2>!'
+        for row in (["TAG", "HP", "VOLTS", "FLA", "CONDUCTORS", "OCPD"], ["P-1", 10, 575, 11, "3#12", "25A CB"],
+                    ["P-12", 7.5, 575, 9, "3#14", "20A CB"]):
+            sheet.append(row)
+        book.save(tmp_path / "odd.xlsx")
+        return tmp_path / "odd.xlsx"
     path = tmp_path / "hostile.csv"
     path.write_text("TAG,DESCRIPTION,HP,VOLTS,FLA,CONDUCTORS,OCPD,REMARKS\n"
                     "<script>alert(1)</script>,\"pump & \"\"fan\"\" <b>\",10,575,11,3#12 RW90,25A CB,=1+1\n"

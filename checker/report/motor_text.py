@@ -7,6 +7,7 @@ the motors that share it, and each cell of a motor once for all of its findings.
 """
 from __future__ import annotations
 
+from functools import lru_cache
 from typing import Any
 
 import orjson
@@ -100,8 +101,30 @@ def _describe(sources: Any, name: str) -> tuple[str, str] | None:
         row, column = sources.row, sources.columns[name]
         if column.__class__ is model.SourceRef:
             row, column = column, column.column
-        label = row.label_at(column)
-    else:
-        source = sources[name]
-        label, column = source.label(), source.column
+        # A label is the same text around the row number for every row of a column: the JSON
+        # around it is made once per column.
+        around = _cell_json_around(name, column, row.sheet, row.page, row.table)
+        number = str(row.row)
+        return around[0] + number + around[1], around[2] + number + around[3]
+    source = sources[name]
+    label, column = source.label(), source.column
     return label, _encode({"field": name, "label": label, "column": column})
+
+
+@lru_cache(maxsize=4096)
+def _cell_json_around(name: str, column: str | None, sheet: str | None, page: int | None,
+                      table: int | None) -> tuple[str, str, str, str]:
+    """(label before the row number, label after it, JSON before it, JSON after it) of the cell of
+    field ``name`` in ``column`` of any row; checked against ``SourceRef.label_at`` for two rows."""
+    marks = (987_654_321, 123_456_789)  # row numbers no other part of a label can hold
+    labels = [model.SourceRef("", row, sheet, page, table).label_at(column) for row in marks]
+    before, found, after = labels[0].partition(str(marks[0]))
+    if not found or labels[1] != f"{before}{marks[1]}{after}":
+        raise ValueError(f"a cell label does not read 'text, row number, text': {labels[0]!r}")
+    # a private-use character (written as it is) that nothing else in the cell's JSON holds
+    mark = next(chr(code) for code in range(0xE000, 0xF900) if chr(code) not in f"{name}{column}{before}{after}")
+    text = _encode({"field": name, "label": f"{before}{mark}{after}", "column": column})
+    json_before, found, json_after = text.partition(mark)
+    if not found:
+        raise ValueError(f"cell JSON without its row mark: {text!r}")
+    return before, after, json_before, json_after
