@@ -416,7 +416,9 @@ _LIMITS_MEMO: ContextVar[_LimitsMemo | None] = ContextVar("feeder_branch_limits"
 
 def _memo(ruleset: Ruleset, options: ReviewOptions) -> _LimitsMemo | None:
     memo = _LIMITS_MEMO.get()
-    return memo if memo is not None and memo.ruleset is ruleset and memo.options == options else None
+    if memo is None or memo.ruleset is not ruleset:
+        return None
+    return memo if memo.options is options or memo.options == options else None
 
 
 def _parts(limits: BranchLimits, column: str, fla_missing: bool) -> tuple:
@@ -483,7 +485,7 @@ def maximum_device(motors: list[Motor], device: str | None, ruleset: Ruleset,
     """
     params = ruleset.check(OCPD_CHECK).params
     columns, device_assumptions = device_columns(device)
-    assumptions = list(device_assumptions)
+    assumptions = dict.fromkeys(device_assumptions)  # in order, each once (a group may hold thousands)
     limits = []
     for column in columns:
         ratings = standard_ratings(ruleset, params, column)
@@ -492,7 +494,7 @@ def maximum_device(motors: list[Motor], device: str | None, ruleset: Ruleset,
         counted = [(m, v) for m, v in values if v.current_a is not None]
         missing = tuple(f"{m.tag}: {v.problem}" for m, v in values if v.problem)
         for _, value in values:
-            assumptions.extend(a for a in value.assumptions if a not in assumptions)
+            assumptions.update(dict.fromkeys(value.assumptions))
         table = ruleset.table(ruleset.check(BRANCH_CHECK).params["max_percent_table"]) \
             if BRANCH_CHECK in ruleset.checks else None
         trail = [f"Branch values, {DEVICE_NAMES[column]} column"
@@ -611,8 +613,9 @@ def group_summary(motors: list[Motor], device: str | None, ruleset: Ruleset, opt
         out["max_device"] = [{"device": lim.column, "limit_a": lim.limit_a, "counted_a": lim.partial_a,
                               "standard_a": lim.standard_a, "reference": lim.reference} for lim in limits]
         trail.extend(line for lim in limits for line in lim.trail)
-        assumptions.extend(a for a in extra if a not in assumptions)
-        missing.extend(m for lim in limits for m in lim.missing if m not in missing)
+        # each once, in order (a group may hold thousands of motors)
+        assumptions[:] = dict.fromkeys([*assumptions, *extra])
+        missing[:] = dict.fromkeys([*missing, *(m for lim in limits for m in lim.missing)])
     if out:
         assumptions.extend(_group_assumptions(motors))
     out["trail"] = trail
