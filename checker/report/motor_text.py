@@ -26,24 +26,36 @@ class MotorText:
     def __init__(self, shared: dict[int, tuple[model.Finding, dict[str, Any]]], catalogue: Catalogue) -> None:
         self.shared = shared
         self.catalogue = catalogue
-        self.part_json: dict[int, str] = {}  # id(part) -> its JSON up to the cells: '{"check":...,"cells":['
+        self.entries: dict[int, tuple] = {}  # id(finding) -> see _entry
 
-    def _part(self, finding: model.Finding) -> dict[str, Any]:
-        known = self.shared.get(id(finding))
-        if known is None:
-            known = self.shared[id(finding)] = (finding, shared_part_of(finding))
-        return known[1]
+    def _entry(self, finding: model.Finding) -> tuple:
+        """(finding, shared part, its JSON up to the cells, catalogue number, inline working)."""
+        entry = self.entries.get(id(finding))
+        if entry is None or entry[0] is not finding:
+            known = self.shared.get(id(finding))
+            if known is None:
+                known = self.shared[id(finding)] = (finding, shared_part_of(finding))
+            part = known[1]
+            number = self.catalogue.number(part)
+            working = self.catalogue.working_block(number, part) if part["status"] == "fail" else ""
+            entry = self.entries[id(finding)] = (finding, part, _encode(part)[:-1] + ',"cells":[', number, working)
+        else:
+            self.catalogue.counts[entry[3] - 1] += 1  # numbered on first sight; counted at each
+        return entry
 
     def both(self, review: model.MotorReview, index: int) -> tuple[str, str]:
         """(JSON object, HTML block) of motor number ``index`` (1-based)."""
         motor = review.motor
-        findings = (*motor.input_findings, *review.findings)
-        parts = [self._part(f) for f in findings]
-        status = worst_status([part["status"] for part in parts])
+        source = motor.source
+        sheet_prefix = f"{source.sheet}!" if source.sheet and source.page is None else ""
         sources = motor.sources
         described: dict[str, tuple[str, str] | None] = {}  # field -> (label, cell JSON), None: no cell
-        cells_of = []
-        for finding in findings:
+        statuses = []
+        finding_json = []
+        lines = []
+        for finding in (*motor.input_findings, *review.findings):
+            _, part, prefix, number, working = self._entry(finding)
+            statuses.append(part["status"])
             cells = []
             for name in finding.fields:
                 cell = described.get(name, _UNSET)
@@ -51,34 +63,19 @@ class MotorText:
                     cell = described[name] = _describe(sources, name)
                 if cell is not None:
                     cells.append(cell)
-            cells_of.append(cells)
-        # JSON: the motor's own values, then each finding's shared part and its cells
-        head = _encode({"tag": motor.tag, "status": status, "source": source_dict(motor.source)})[:-1]
-        pieces = [head, ',"record":', _json_of(motor.record), ',"raw":', _json_of(motor.raw), ',"findings":[']
-        part_json = self.part_json
-        for number, (part, cells) in enumerate(zip(parts, cells_of)):
-            prefix = part_json.get(id(part))
-            if prefix is None:
-                prefix = part_json[id(part)] = _encode(part)[:-1] + ',"cells":['
-            pieces.append("," + prefix if number else prefix)
-            pieces.append(",".join([cell[1] for cell in cells]))
-            pieces.append("]}")
-        not_run = [{"check": item.check, "reason": item.reason, "detail": item.detail} for item in review.not_run]
-        pieces.append('],"not_run":')
-        pieces.append(_encode(not_run))
-        pieces.append("}")
-        # HTML: the same block html_motors.motor_block makes from the motor's dict
-        catalogue = self.catalogue
-        source = motor.source
-        sheet_prefix = f"{source.sheet}!" if source.sheet and source.page is None else ""
-        lines = []
-        for part, cells in zip(parts, cells_of):
-            number = catalogue.number(part)
-            working = catalogue.working_block(number, part) if part["status"] == "fail" else ""
+            finding_json.append(prefix + ",".join([cell[1] for cell in cells]) + "]}")
             lines.append((number, cells_html([cell[0] for cell in cells], sheet_prefix), working))
+        status = worst_status(statuses)
+        # JSON: the motor's own values, then each finding's shared part and its cells
+        not_run = [{"check": item.check, "reason": item.reason, "detail": item.detail} for item in review.not_run]
+        json_text = "".join([
+            _encode({"tag": motor.tag, "status": status, "source": source_dict(motor.source)})[:-1],
+            ',"record":', _json_of(motor.record), ',"raw":', _json_of(motor.raw),
+            ',"findings":[', ",".join(finding_json), '],"not_run":', _encode(not_run), "}"])
+        # HTML: the same block html_motors.motor_block makes from the motor's dict
         html = block_html(index, status, motor.tag, motor.record.get("description"), source.label(), lines,
-                          catalogue, [(item.check, item.detail) for item in review.not_run], motor.raw)
-        return "".join(pieces), html
+                          self.catalogue, [(item.check, item.detail) for item in review.not_run], motor.raw)
+        return json_text, html
 
 
 _UNSET = object()
