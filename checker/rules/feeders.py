@@ -347,6 +347,7 @@ class BranchValue:
     line: str
     assumptions: tuple[str, ...]
     problem: str | None
+    row: str = ""  # the table row the percentage came from; the trail lists a row's motors together
 
 
 _ABSENT = object()
@@ -423,22 +424,23 @@ def _memo(ruleset: Ruleset, options: ReviewOptions) -> _LimitsMemo | None:
 
 def _parts(limits: BranchLimits, column: str, fla_missing: bool) -> tuple:
     """What ``branch_value`` says for these limits, but the motor's tag: (current, value, problem,
-    assumptions, table-FLC note, row uncertain, line after the tag)."""
+    assumptions, table-FLC note, row uncertain, arithmetic after the tag, table row)."""
     current_a = limits.basis.current_a
     if current_a is None:
-        return None, None, limits.problem or limits.basis.problem, (), None, False, ""
+        return None, None, limits.problem or limits.basis.problem, (), None, False, "", ""
     assumptions = tuple(a for a in limits.assumptions if a not in limits.basis.assumptions)
     flc_note = (f": no nameplate FLA; {num(current_a)} A table FLC used."
                 if limits.basis.basis == "table" and fla_missing else None)
     readings = [c for c in limits.candidates if c.column == column]
     if limits.problem or not readings:
         return (current_a, None, limits.problem or f"no {DEVICE_NAMES[column]} percentage for it", assumptions,
-                flc_note, False, "")
+                flc_note, False, "", "")
     best = min(readings, key=lambda c: c.permitted_a)  # rows the schedule cannot tell apart: the stricter
     uncertain = len({c.permitted_a for c in readings}) > 1
-    line = (f": {num(current_a)} A × {num(best.percent)} % ({best.row.replace('-', ' ')}) = "
-            f"{calc(best.limit_a)} A{best.permitted_note}")
-    return current_a, best.permitted_a, None, assumptions, flc_note, uncertain, line
+    # Short: a group lists one term per motor per device type (the motor's own finding has the long form).
+    permitted = f" ({num(best.permitted_a)} A permitted)" if best.permitted_a > best.limit_a + 1e-9 else ""
+    line = f" {num(current_a)} A × {num(best.percent)} % = {calc(best.limit_a)} A{permitted}"
+    return current_a, best.permitted_a, None, assumptions, flc_note, uncertain, line, best.row.replace("-", " ")
 
 
 def branch_value(motor: Motor, column: str, ruleset: Ruleset, options: ReviewOptions) -> BranchValue:
@@ -461,7 +463,7 @@ def branch_value(motor: Motor, column: str, ruleset: Ruleset, options: ReviewOpt
         if known is None or known[0] is not limits:
             known = memo.parts[(column, fla_missing, id(limits))] = (limits, _parts(limits, column, fla_missing))
         parts = known[1]
-    current_a, value_a, problem, assumptions, flc_note, uncertain, line = parts
+    current_a, value_a, problem, assumptions, flc_note, uncertain, line, row = parts
     if current_a is None:
         return BranchValue(None, None, "", (), problem)
     if flc_note is not None:
@@ -470,7 +472,7 @@ def branch_value(motor: Motor, column: str, ruleset: Ruleset, options: ReviewOpt
         return BranchValue(current_a, None, "", assumptions, problem)
     if uncertain:
         assumptions += (f"{motor.tag}: the table row is not certain; the lower branch value is used.",)
-    return BranchValue(current_a, value_a, f"{motor.tag}{line}", assumptions, None)
+    return BranchValue(current_a, value_a, f"{motor.tag}{line}", assumptions, None, row)
 
 
 def maximum_device(motors: list[Motor], device: str | None, ruleset: Ruleset,
@@ -499,7 +501,10 @@ def maximum_device(motors: list[Motor], device: str | None, ruleset: Ruleset,
             if BRANCH_CHECK in ruleset.checks else None
         trail = [f"Branch values, {DEVICE_NAMES[column]} column"
                  + (f" of {table.citation}:" if table is not None else ":")]
-        trail.extend(v.line for _, v in known)
+        by_row: dict[str, list[str]] = {}  # each row's motors in one line, rows in order of first use
+        for _, value in known:
+            by_row.setdefault(value.row, []).append(value.line)
+        trail.extend(f"{row.capitalize()} row: {'; '.join(lines)}" for row, lines in by_row.items())
         if not known:
             limits.append(DeviceLimit(column, None, None, None, None, tuple(trail), missing))
             continue
