@@ -1,3 +1,3 @@
-from checker.cli import main
+from checker.cli import run
 
-raise SystemExit(main())
+run()

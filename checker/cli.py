@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import argparse
 import gc
+import os
 import sys
 from pathlib import Path
 
@@ -135,6 +136,22 @@ def main(argv: list[str] | None = None) -> int:
         return EXIT_UNUSABLE
     except Exception as exc:  # noqa: BLE001 - every failure ends in one line, never a traceback
         return _report_error(exc)
+
+
+def run() -> None:
+    """The command's entry point: :func:`main`, then leave at once.
+
+    A large review holds millions of small objects; freeing them one by one at interpreter exit
+    only costs time (a tenth of a second per 10 000 motors) once the reports are written and
+    closed. Output streams are flushed first. Code calling :func:`main` itself is unaffected.
+    """
+    code = main()
+    for stream in (sys.stdout, sys.stderr):
+        try:
+            stream.flush()
+        except (OSError, ValueError):  # a closed or broken pipe: nothing more can be said there
+            pass
+    os._exit(code)
 
 
 def _report_error(exc: Exception) -> int:

@@ -16,7 +16,7 @@ from collections.abc import Callable
 from dataclasses import dataclass, field
 from functools import lru_cache
 from pathlib import Path
-from typing import Any
+from typing import Any, NamedTuple
 
 from jsonschema import Draft202012Validator
 
@@ -313,8 +313,7 @@ def _read_cell(reader, col, text: str) -> tuple[Parsed, str | None]:
     return parsed, target
 
 
-@dataclass(frozen=True, slots=True)
-class _CellReading:
+class _CellReading(NamedTuple):  # a tuple: made for every distinct text of every column
     """What one distinct cell text of a column reads as, worked out once per table.
 
     ``values`` are the (record field, value) pairs the cell gives, each with its validity

@@ -35,6 +35,7 @@ from __future__ import annotations
 from collections.abc import Callable, Mapping
 from contextvars import ContextVar
 from dataclasses import dataclass
+from typing import NamedTuple
 
 from checker.ingest.feeders import FeederRow, group_key
 from checker.ingest.normalize import FrozenValues
@@ -333,8 +334,7 @@ class DeviceLimit:
     missing: tuple[str, ...]
 
 
-@dataclass(frozen=True, slots=True)
-class BranchValue:
+class BranchValue(NamedTuple):  # a tuple: made once per motor per device column
     """One motor's contribution to the feeder device limit under one device column.
 
     ``current_a`` None: the motor's current is unknown. ``value_a`` None (with
@@ -443,7 +443,8 @@ def _parts(limits: BranchLimits, column: str, fla_missing: bool) -> tuple:
     return current_a, best.permitted_a, None, assumptions, flc_note, uncertain, line, best.row.replace("-", " ")
 
 
-def branch_value(motor: Motor, column: str, ruleset: Ruleset, options: ReviewOptions) -> BranchValue:
+def branch_value(motor: Motor, column: str, ruleset: Ruleset, options: ReviewOptions,
+                 memo: _LimitsMemo | None | object = _ABSENT) -> BranchValue:
     """The largest branch device the motor is permitted for a device of ``column``'s type.
 
     Uses the branch-ocpd arithmetic itself (checker/rules/overcurrent.py
@@ -453,7 +454,8 @@ def branch_value(motor: Motor, column: str, ruleset: Ruleset, options: ReviewOpt
     """
     if BRANCH_CHECK not in ruleset.checks:
         return BranchValue(None, None, "", (), f"the ruleset has no {BRANCH_CHECK} check to size branch devices")
-    memo = _memo(ruleset, options)
+    if memo is _ABSENT:
+        memo = _memo(ruleset, options)
     fla_missing = motor.record.get("fla_a") is None
     if memo is None:
         parts = _parts(branch_limits(_with_device(motor.record, column), ruleset, options), column, fla_missing)
@@ -489,9 +491,10 @@ def maximum_device(motors: list[Motor], device: str | None, ruleset: Ruleset,
     columns, device_assumptions = device_columns(device)
     assumptions = dict.fromkeys(device_assumptions)  # in order, each once (a group may hold thousands)
     limits = []
+    memo = _memo(ruleset, options)
     for column in columns:
         ratings = standard_ratings(ruleset, params, column)
-        values = [(motor, branch_value(motor, column, ruleset, options)) for motor in motors]
+        values = [(motor, branch_value(motor, column, ruleset, options, memo)) for motor in motors]
         known = [(m, v) for m, v in values if v.value_a is not None]
         counted = [(m, v) for m, v in values if v.current_a is not None]
         missing = tuple(f"{m.tag}: {v.problem}" for m, v in values if v.problem)
