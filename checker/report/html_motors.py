@@ -210,13 +210,18 @@ def motor_block(motor: Mapping[str, Any], index: int, catalogue: Catalogue) -> s
         lines.append((number, _cells_text(finding, sheet_prefix), working))
     not_run = [(n.get("check"), n.get("detail")) for n in motor.get("not_run") or [] if isinstance(n, Mapping)]
     return block_html(index, motor.get("status"), motor.get("tag"), record.get("description"),
-                      source.get("label", ""), lines, catalogue, not_run, motor.get("raw"))
+                      source.get("label", ""), lines_html(lines, catalogue), not_run, motor.get("raw"))
 
 
-def block_html(index: int, status_value: Any, tag: Any, description: Any, location: Any,
-               lines: list[tuple[int, str, str]], catalogue: Catalogue, not_run: list[tuple[Any, Any]],
-               raw: Any) -> str:
-    """A motor's block from its parts: finding ``lines`` are (catalogue number, cells text, inline working)."""
+def lines_html(lines: list[tuple[int, str, str]], catalogue: Catalogue) -> str:
+    """Finding lines, each (catalogue number, cells text, inline working), as ``<li>`` items."""
+    heads = catalogue.heads
+    return "".join([f"{heads[number - 1]}{cells_text}{working}</li>\n" for number, cells_text, working in lines])
+
+
+def block_html(index: int, status_value: Any, tag: Any, description: Any, location: Any, lines: str,
+               not_run: list[tuple[Any, Any]], raw: Any) -> str:
+    """A motor's block from its parts; ``lines`` are its findings' ``<li>`` items (:func:`lines_html`)."""
     status, label = _status(status_value)
     out = [f'<details class="motor st-{status}" id="motor-{index}"{"" if status_value == "pass" else " open"}>'
            f'<summary><span class="badge st-{status}">{label}</span> <span class="tag">{escape_text(tag)}</span>'
@@ -224,12 +229,7 @@ def block_html(index: int, status_value: Any, tag: Any, description: Any, locati
            + f' <span class="loc">{escape_text(location)}</span></summary>\n']
     if lines:
         out.append('<ul class="fl">')
-        heads = catalogue.heads
-        for number, cells_text, working in lines:
-            out.append(heads[number - 1])
-            out.append(cells_text)
-            out.append(working)
-            out.append("</li>\n")
+        out.append(lines)
         out.append("</ul>\n")
     else:
         out.append(f'<p class="empty">{NO_FINDINGS}</p>\n')

@@ -2,8 +2,11 @@
 
 The same text as encoding ``build.motor_dict`` with ``json_report`` and rendering it with
 ``html_motors.motor_block`` (tests/test_fast_paths.py holds them to it, byte for byte), without
-building that dict: a finding's shared part (everything but its cells) is encoded once for all
-the motors that share it, and each cell of a motor once for all of its findings.
+building that dict. A finding's shared part (everything but its cells) is encoded once for all
+the motors that share it. Motors of a table whose checks gave the very same findings (a review
+reuses findings for motors with equal values: a facility schedule has a few dozen such sets)
+differ, in their findings' text, only in the row number of the cells: that text is made once
+per set, around the row number, and each motor's is the row number put in.
 """
 from __future__ import annotations
 
@@ -15,8 +18,23 @@ import orjson
 from checker import model
 from checker.report.build import _shared_part as shared_part_of
 from checker.report.build import plain_record, source_dict, worst_status
-from checker.report.html_motors import Catalogue, block_html, cells_html
+from checker.report.html_motors import Catalogue, block_html, cells_html, lines_html
 from checker.report.json_report import _encode
+
+# Stands for a motor's row number while the text of a set of findings is made (see _Template);
+# a set whose text holds it for another reason is written motor by motor instead.
+_ROW_MARK = "\ue0ff"
+
+
+class _Template:
+    """The text of one set of check findings, split where the motor's row number goes."""
+
+    __slots__ = ("findings", "html", "json", "numbers", "statuses")
+
+    def __init__(self, findings: tuple, json: list[str], html: list[str], numbers: list[int],
+                 statuses: list[str]) -> None:
+        self.findings = findings  # held, so that the ids in the template's key are not reused
+        self.json, self.html, self.numbers, self.statuses = json, html, numbers, statuses
 
 
 class MotorText:
@@ -27,21 +45,55 @@ class MotorText:
         self.shared = shared
         self.catalogue = catalogue
         self.entries: dict[int, tuple] = {}  # id(finding) -> see _entry
+        self.templates: dict[tuple, _Template | None] = {}
 
-    def _entry(self, finding: model.Finding) -> tuple:
-        """(finding, shared part, its JSON up to the cells, catalogue number, inline working)."""
+    def _entry(self, finding: model.Finding, count: bool = True) -> tuple:
+        """(finding, shared part, its JSON up to the cells, catalogue number, inline working);
+        ``count``: the finding is counted once more in the catalogue."""
         entry = self.entries.get(id(finding))
         if entry is None or entry[0] is not finding:
             known = self.shared.get(id(finding))
             if known is None:
                 known = self.shared[id(finding)] = (finding, shared_part_of(finding))
             part = known[1]
-            number = self.catalogue.number(part)
+            number = self.catalogue.number(part)  # numbered, and counted, on first sight
             working = self.catalogue.working_block(number, part) if part["status"] == "fail" else ""
             entry = self.entries[id(finding)] = (finding, part, _encode(part)[:-1] + ',"cells":[', number, working)
-        else:
-            self.catalogue.counts[entry[3] - 1] += 1  # numbered on first sight; counted at each
+        elif count:
+            self.catalogue.counts[entry[3] - 1] += 1
         return entry
+
+    def _texts(self, findings, sources, row_text: str, sheet_prefix: str, count: bool = True) -> tuple:
+        """(statuses, JSON of each finding, HTML lines, catalogue numbers) of ``findings``, their
+        cells labelled with ``row_text`` as the row."""
+        described: dict[str, tuple[str, str] | None] = {}  # field -> (label, cell JSON), None: no cell
+        statuses, json, lines, numbers = [], [], [], []
+        for finding in findings:
+            _, part, prefix, number, working = self._entry(finding, count)
+            statuses.append(part["status"])
+            numbers.append(number)
+            cells = []
+            for name in finding.fields:
+                cell = described.get(name, _UNSET)
+                if cell is _UNSET:
+                    cell = described[name] = _describe(sources, name, row_text)
+                if cell is not None:
+                    cells.append(cell)
+            json.append(prefix + ",".join([cell[1] for cell in cells]) + "]}")
+            lines.append((number, cells_html([cell[0] for cell in cells], sheet_prefix), working))
+        return statuses, json, lines_html(lines, self.catalogue), numbers
+
+    def _template(self, review: model.MotorReview, sources, row_text: str, sheet_prefix: str) -> tuple:
+        """(this motor's texts of its check findings, counted; the set's template or None)."""
+        texts = self._texts(review.findings, sources, row_text, sheet_prefix)
+        statuses, json, html, numbers = self._texts(review.findings, sources, _ROW_MARK, sheet_prefix, count=False)
+        template = _Template(review.findings, ",".join(json).split(_ROW_MARK), html.split(_ROW_MARK), numbers,
+                             statuses)
+        # The mark must stand only where the row number goes (not in a sheet name or a message):
+        # the template has to give this motor's own text exactly.
+        if row_text.join(template.json) != ",".join(texts[1]) or row_text.join(template.html) != texts[2]:
+            template = None
+        return texts, template
 
     def both(self, review: model.MotorReview, index: int) -> tuple[str, str]:
         """(JSON object, HTML block) of motor number ``index`` (1-based)."""
@@ -49,32 +101,43 @@ class MotorText:
         source = motor.source
         sheet_prefix = f"{source.sheet}!" if source.sheet and source.page is None else ""
         sources = motor.sources
-        described: dict[str, tuple[str, str] | None] = {}  # field -> (label, cell JSON), None: no cell
-        statuses = []
-        finding_json = []
-        lines = []
-        for finding in (*motor.input_findings, *review.findings):
-            _, part, prefix, number, working = self._entry(finding)
-            statuses.append(part["status"])
-            cells = []
-            for name in finding.fields:
-                cell = described.get(name, _UNSET)
-                if cell is _UNSET:
-                    cell = described[name] = _describe(sources, name)
-                if cell is not None:
-                    cells.append(cell)
-            finding_json.append(prefix + ",".join([cell[1] for cell in cells]) + "]}")
-            lines.append((number, cells_html([cell[0] for cell in cells], sheet_prefix), working))
+        row_text = str(source.row)
+        statuses: list[str] = []
+        finding_json: list[str] = []
+        html_lines = ""
+        if motor.input_findings:  # the row's own reading problems: never shared with another motor
+            statuses, finding_json, html_lines, _ = self._texts(motor.input_findings, sources, row_text, sheet_prefix)
+        if review.findings:
+            template = texts = None
+            key = None
+            if sources.__class__ is model.CellSources and sources.row is source:
+                try:
+                    key = (tuple(map(id, review.findings)), tuple(sources.columns.items()), source.sheet,
+                           source.page, source.table)
+                    template = self.templates.get(key, _UNSET)
+                except TypeError:  # a column value that cannot be hashed: no template
+                    key = template = None
+            if template is _UNSET:
+                texts, template = self._template(review, sources, row_text, sheet_prefix)
+                self.templates[key] = template
+            elif template is not None:
+                counts = self.catalogue.counts
+                for number in template.numbers:
+                    counts[number - 1] += 1
+                texts = (template.statuses, [row_text.join(template.json)], row_text.join(template.html), None)
+            if texts is None:
+                texts = self._texts(review.findings, sources, row_text, sheet_prefix)
+            statuses = statuses + texts[0]
+            finding_json = finding_json + texts[1]
+            html_lines += texts[2]
         status = worst_status(statuses)
-        # JSON: the motor's own values, then each finding's shared part and its cells
         not_run = [{"check": item.check, "reason": item.reason, "detail": item.detail} for item in review.not_run]
         json_text = "".join([
-            _encode({"tag": motor.tag, "status": status, "source": source_dict(motor.source)})[:-1],
+            _encode({"tag": motor.tag, "status": status, "source": source_dict(source)})[:-1],
             ',"record":', _json_of(motor.record), ',"raw":', _json_of(motor.raw),
             ',"findings":[', ",".join(finding_json), '],"not_run":', _encode(not_run), "}"])
-        # HTML: the same block html_motors.motor_block makes from the motor's dict
-        html = block_html(index, status, motor.tag, motor.record.get("description"), source.label(), lines,
-                          self.catalogue, [(item.check, item.detail) for item in review.not_run], motor.raw)
+        html = block_html(index, status, motor.tag, motor.record.get("description"), source.label(), html_lines,
+                          [(item.check, item.detail) for item in review.not_run], motor.raw)
         return json_text, html
 
 
@@ -89,20 +152,20 @@ def _json_of(value: dict) -> str:
         return _encode(plain_record(value))
 
 
-def _describe(sources: Any, name: str) -> tuple[str, str] | None:
+def _describe(sources: Any, name: str, row_text: str) -> tuple[str, str] | None:
     """(label, JSON of ``{"field", "label", "column"}``) of a field's cell, as ``build.cells_for``
-    describes it; None when the field has no cell."""
+    describes it, with ``row_text`` as the motor's row number; None when the field has no cell."""
     if name not in sources:
         return None
     if sources.__class__ is model.CellSources:
         row, column = sources.row, sources.columns[name]
-        if column.__class__ is model.SourceRef:
+        if column.__class__ is model.SourceRef:  # a value taken from another row (a section heading)
             row, column = column, column.column
+            row_text = str(row.row)
         # A label is the same text around the row number for every row of a column: the JSON
         # around it is made once per column.
         around = _cell_json_around(name, column, row.sheet, row.page, row.table)
-        number = str(row.row)
-        return around[0] + number + around[1], around[2] + number + around[3]
+        return around[0] + row_text + around[1], around[2] + row_text + around[3]
     source = sources[name]
     label, column = source.label(), source.column
     return label, _encode({"field": name, "label": label, "column": column})
