@@ -143,13 +143,28 @@ def _short_header(header: Any) -> str:
     return escape_text(str(header).rsplit(" / ", 1)[-1])
 
 
+_PAIRS: dict[tuple[Any, Any], str] = {}  # (header, cell text) -> 'HEADER: text', escaped (texts repeat down a column)
+_MAX_PAIRS = 100_000
+
+
+def _pair(header: Any, text: Any) -> str:
+    try:
+        pair = _PAIRS.get((header, text))
+    except TypeError:  # not hashable: made each time
+        return f"{_short_header(header)}: {escape_text(text)}"
+    if pair is None:
+        if len(_PAIRS) >= _MAX_PAIRS:
+            _PAIRS.clear()
+        pair = _PAIRS[(header, text)] = f"{_short_header(header)}: {escape_text(text)}"
+    return pair
+
+
 def _raw_text(raw: Any, shown: tuple[Any, ...]) -> str:
     """The row as submitted, 'HEADER: text' by column (the header's last level), leaving out
     the texts already in the motor's summary line (its tag and description)."""
     if not isinstance(raw, Mapping) or not raw:
         return ""
-    pairs = " · ".join([f"{_short_header(header)}: {escape_text(text)}" for header, text in raw.items()
-                        if text not in shown])
+    pairs = " · ".join([_pair(header, text) for header, text in raw.items() if text not in shown])
     return f'<p class="raw">As submitted: {pairs}</p>' if pairs else ""
 
 
