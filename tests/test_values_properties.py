@@ -211,3 +211,12 @@ def test_footnote_mark_keeps_the_value_and_is_noted(hp, junk):
     marked = values.parse_hp(values.format_hp(hp) + junk)
     assert marked.problem is None and marked.value == hp
     assert any("footnote" in n for n in marked.notes)
+
+
+@settings(max_examples=400, deadline=None)
+@given(st.one_of(st.text(alphabet=st.characters(min_codepoint=32, max_codepoint=126), max_size=40),
+                 st.sampled_from(["TBD", "n/a", "--", "=SUM(A1:A3)", "=B2", "by others", "P-1  A", " x ", ""])))
+def test_plain_text_short_way_equals_the_long_way(text):
+    """``parse_text`` skips the clean-up steps for plain ASCII text; the result is what they give."""
+    stripped = text.strip()
+    assert values.parse_text(text) == values._prepared_text(stripped)

@@ -1429,6 +1429,15 @@ def format_device(value: dict[str, Any]) -> str:
 @_cell_parser("text", max_chars=MAX_TEXT_CHARS)
 def parse_text(text: str) -> Parsed:
     """Tag, description, fed-from or remarks text with internal whitespace collapsed."""
+    if text.isascii() and text.isprintable() and "  " not in text and not _is_placeholder(text) \
+            and not _FORMULA_RE.match(text):
+        # Plain text (most tags and descriptions, each read once): nothing for _prepare to change.
+        return Parsed(text)
+    return _prepared_text(text)
+
+
+def _prepared_text(text: str) -> Parsed:
+    """``parse_text`` the long way (tests hold the short way to it)."""
     prepared = _prepare(text, "text", footnotes=False)
     if isinstance(prepared, Parsed):
         return prepared
