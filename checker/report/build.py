@@ -211,7 +211,8 @@ def shared_part(entry: Any) -> dict[str, Any] | None:
     return entry.shared if entry.__class__ is FindingEntry else None
 
 
-def _shared_part(finding: model.Finding) -> dict[str, Any]:
+def finding_shared_part(finding: model.Finding) -> dict[str, Any]:
+    """A finding in report form but its cells: the same for every motor given this finding."""
     return {
         "check": finding.check,
         "rule": finding.rule,
@@ -236,7 +237,7 @@ def finding_dict(finding: model.Finding, sources: Mapping[str, model.SourceRef],
     ``known`` map of :func:`cells_for` for these ``sources``.
     """
     known = shared.get(id(finding)) if shared is not None else None
-    part = known[1] if known is not None else _shared_part(finding)
+    part = known[1] if known is not None else finding_shared_part(finding)
     if shared is not None and known is None:
         shared[id(finding)] = (finding, part)
     entry = FindingEntry(part)

@@ -19,7 +19,7 @@ REVIEW_SCHEMA = SCHEMAS_DIR / "review.schema.json"
 _std_encode = json.JSONEncoder(ensure_ascii=False, allow_nan=False, separators=(",", ":")).encode
 
 
-def _encode(value: Any) -> str:
+def encode(value: Any) -> str:
     """Compact JSON of ``value``, UTF-8 kept as is, keys in insertion order.
 
     orjson and the standard encoder differ only in float exponents (``1e16`` / ``1e+16``), both
@@ -38,7 +38,7 @@ def dumps(report: dict[str, Any]) -> str:
     and, in lists of objects (motors, skipped rows, feeders, ...), one object per line.
 
     One object per line keeps a 100 000-motor report greppable and diffable, and lets every
-    value be written by a compiled encoder (see ``_encode``).
+    value be written by a compiled encoder (see ``encode``).
     """
     return "".join(iter_json(report))
 
@@ -47,7 +47,7 @@ def iter_json(report: dict[str, Any]) -> Iterator[str]:
     """The text of :func:`dumps` in pieces (up to ``MOTORS_PER_PIECE`` objects each), to write as they come."""
     yield "{\n"
     for number, (key, value) in enumerate(report.items()):
-        head = (",\n  " if number else "  ") + _encode(str(key)) + ": "
+        head = (",\n  " if number else "  ") + encode(str(key)) + ": "
         if isinstance(value, MotorDicts) or (isinstance(value, list) and value
                                               and all(isinstance(item, dict) for item in value)):
             if not len(value):
@@ -62,13 +62,13 @@ def iter_json(report: dict[str, Any]) -> Iterator[str]:
             for index, item in enumerate(value):
                 if index:
                     out.append(",\n    ")
-                out.append(_encode(item))
+                out.append(encode(item))
                 if index % MOTORS_PER_PIECE == MOTORS_PER_PIECE - 1:
                     yield "".join(out)
                     out = []
             yield "".join(out) + "\n  ]"
         else:
-            yield head + _encode(value)
+            yield head + encode(value)
     yield "\n}\n"
 
 

@@ -16,10 +16,9 @@ from typing import Any
 import orjson
 
 from checker import model
-from checker.report.build import _shared_part as shared_part_of
-from checker.report.build import plain_record, source_dict, worst_status
+from checker.report.build import finding_shared_part, plain_record, source_dict, worst_status
 from checker.report.html_motors import Catalogue, block_html, cells_html, lines_html
-from checker.report.json_report import _encode
+from checker.report.json_report import encode
 
 # Stands for a motor's row number while the text of a set of findings is made (see _Template);
 # a set whose text holds it for another reason is written motor by motor instead.
@@ -54,11 +53,11 @@ class MotorText:
         if entry is None or entry[0] is not finding:
             known = self.shared.get(id(finding))
             if known is None:
-                known = self.shared[id(finding)] = (finding, shared_part_of(finding))
+                known = self.shared[id(finding)] = (finding, finding_shared_part(finding))
             part = known[1]
             number = self.catalogue.number(part)  # numbered, and counted, on first sight
             working = self.catalogue.working_block(number, part) if part["status"] == "fail" else ""
-            entry = self.entries[id(finding)] = (finding, part, _encode(part)[:-1] + ',"cells":[', number, working)
+            entry = self.entries[id(finding)] = (finding, part, encode(part)[:-1] + ',"cells":[', number, working)
         elif count:
             self.catalogue.counts[entry[3] - 1] += 1
         return entry
@@ -133,9 +132,9 @@ class MotorText:
         status = worst_status(statuses)
         not_run = [{"check": item.check, "reason": item.reason, "detail": item.detail} for item in review.not_run]
         json_text = "".join([
-            _encode({"tag": motor.tag, "status": status, "source": source_dict(source)})[:-1],
+            encode({"tag": motor.tag, "status": status, "source": source_dict(source)})[:-1],
             ',"record":', _json_of(motor.record), ',"raw":', _json_of(motor.raw),
-            ',"findings":[', ",".join(finding_json), '],"not_run":', _encode(not_run), "}"])
+            ',"findings":[', ",".join(finding_json), '],"not_run":', encode(not_run), "}"])
         html = block_html(index, status, motor.tag, motor.record.get("description"), source.label(), html_lines,
                           [(item.check, item.detail) for item in review.not_run], motor.raw)
         return json_text, html
@@ -145,11 +144,11 @@ _UNSET = object()
 
 
 def _json_of(value: dict) -> str:
-    """JSON of a record or row, as ``_encode(plain_record(value))`` writes it."""
+    """JSON of a record or row, as ``encode(plain_record(value))`` writes it."""
     try:
         return orjson.dumps(value).decode("utf-8")
     except TypeError:  # what plain_record hands to plain
-        return _encode(plain_record(value))
+        return encode(plain_record(value))
 
 
 def _describe(sources: Any, name: str, row_text: str) -> tuple[str, str] | None:
@@ -168,7 +167,7 @@ def _describe(sources: Any, name: str, row_text: str) -> tuple[str, str] | None:
         return around[0] + row_text + around[1], around[2] + row_text + around[3]
     source = sources[name]
     label, column = source.label(), source.column
-    return label, _encode({"field": name, "label": label, "column": column})
+    return label, encode({"field": name, "label": label, "column": column})
 
 
 @lru_cache(maxsize=4096)
@@ -183,7 +182,7 @@ def _cell_json_around(name: str, column: str | None, sheet: str | None, page: in
         raise ValueError(f"a cell label does not read 'text, row number, text': {labels[0]!r}")
     # a private-use character (written as it is) that nothing else in the cell's JSON holds
     mark = next(chr(code) for code in range(0xE000, 0xF900) if chr(code) not in f"{name}{column}{before}{after}")
-    text = _encode({"field": name, "label": f"{before}{mark}{after}", "column": column})
+    text = encode({"field": name, "label": f"{before}{mark}{after}", "column": column})
     json_before, found, json_after = text.partition(mark)
     if not found:
         raise ValueError(f"cell JSON without its row mark: {text!r}")
