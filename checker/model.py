@@ -101,6 +101,12 @@ class CellSources(Mapping):
         where = self.columns[name]
         return where if where.__class__ is SourceRef else self.row.at_column(where)
 
+    def place(self, name: str) -> tuple[SourceRef, str | None]:
+        """(the row, the column) of field ``name``'s cell, without making a SourceRef for it:
+        its label is ``row.label_at(column)``."""
+        where = self.columns[name]
+        return (where, where.column) if where.__class__ is SourceRef else (self.row, where)
+
     def __contains__(self, name: object) -> bool:
         return name in self.columns
 

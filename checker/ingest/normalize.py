@@ -464,7 +464,7 @@ def _attach_conductor_extras(table, cells, row_source, record, findings) -> bool
     conductor = record["conductor"] = {k: (list(v) if isinstance(v, list) else v) for k, v in conductor.items()}
     changed = False
     for col in table.columns:
-        if col.field not in ("bond", "raceway") or conductor is None:
+        if col.field not in ("bond", "raceway"):
             continue
         text = cells[col.index]
         if not text:

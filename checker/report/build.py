@@ -146,9 +146,7 @@ def cells_for(finding: model.Finding, sources: Mapping[str, model.SourceRef],
             if field_name not in sources:
                 continue
             if sources.__class__ is model.CellSources:  # the label without making a SourceRef
-                row, column = sources.row, sources.columns[field_name]
-                if column.__class__ is model.SourceRef:
-                    row, column = column, column.column
+                row, column = sources.place(field_name)
                 cell = {"field": field_name, "label": row.label_at(column), "column": column}
             else:
                 source = sources[field_name]

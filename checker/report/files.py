@@ -31,7 +31,6 @@ def write_atomic_chunks(path: Path, chunks: Iterable[str]) -> None:
     write_atomic_together([(path, chunks)])
 
 
-_DONE = object()
 # Pieces are gathered and written about this many characters at a time: a page template gives
 # hundreds of thousands of small pieces, and each write to a text stream has its own cost.
 _GATHER_CHARS = 1 << 18
@@ -102,21 +101,12 @@ def atomic_text_files(paths: list[Path]) -> Iterator[list[GatheredWriter]]:
 
 
 def write_atomic_together(targets: list[tuple[Path, Iterable[str]]]) -> None:
-    """Write several files from their pieces, taking one piece of each in turn (see
-    :func:`atomic_text_files`: all files are replaced together or none is).
-
-    Turn by turn, producers that read the same sequence stay a few items apart, so each item
-    is built once and dropped soon.
-    """
+    """Write several files from their pieces, one file after the other (see
+    :func:`atomic_text_files`: all files are replaced together or none is)."""
     with atomic_text_files([path for path, _ in targets]) as writers:
-        active = [(writer, iter(chunks)) for writer, (_, chunks) in zip(writers, targets)]
-        while active:
-            for item in list(active):
-                chunk = next(item[1], _DONE)
-                if chunk is _DONE:
-                    active.remove(item)
-                else:
-                    item[0].write(chunk)
+        for writer, (_, chunks) in zip(writers, targets):
+            for chunk in chunks:
+                writer.write(chunk)
 
 
 def _sync_directory(directory: Path) -> None:

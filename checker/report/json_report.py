@@ -19,6 +19,10 @@ REVIEW_SCHEMA = SCHEMAS_DIR / "review.schema.json"
 _std_encode = json.JSONEncoder(ensure_ascii=False, allow_nan=False, separators=(",", ":")).encode
 
 
+# Between two objects of a list (motors, skipped rows, feeders): one object per line.
+OBJECT_SEPARATOR = ",\n    "
+
+
 def encode(value: Any) -> str:
     """Compact JSON of ``value``, UTF-8 kept as is, keys in insertion order.
 
@@ -61,7 +65,7 @@ def iter_json(report: dict[str, Any]) -> Iterator[str]:
             out = [head, "[\n    "]
             for index, item in enumerate(value):
                 if index:
-                    out.append(",\n    ")
+                    out.append(OBJECT_SEPARATOR)
                 out.append(encode(item))
                 if index % MOTORS_PER_PIECE == MOTORS_PER_PIECE - 1:
                     yield "".join(out)

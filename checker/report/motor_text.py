@@ -157,9 +157,8 @@ def _describe(sources: Any, name: str, row_text: str) -> tuple[str, str] | None:
     if name not in sources:
         return None
     if sources.__class__ is model.CellSources:
-        row, column = sources.row, sources.columns[name]
-        if column.__class__ is model.SourceRef:  # a value taken from another row (a section heading)
-            row, column = column, column.column
+        row, column = sources.place(name)
+        if row is not sources.row:  # a value taken from another row (a section heading)
             row_text = str(row.row)
         # A label is the same text around the row number for every row of a column: the JSON
         # around it is made once per column.

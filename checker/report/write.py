@@ -17,10 +17,8 @@ from checker.report.build import MOTORS_HERE, MOTORS_PER_PIECE, MotorDicts, Writ
 from checker.report.files import GatheredWriter, atomic_text_files, write_atomic_together
 from checker.report.html_motors import Catalogue
 from checker.report.html_report import appendix_ids, iter_html
-from checker.report.json_report import iter_json
+from checker.report.json_report import OBJECT_SEPARATOR, iter_json
 from checker.report.motor_text import MotorText
-
-_JSON_SEPARATOR = ",\n    "  # between two motors' lines (json_report writes lists of objects so)
 
 
 def write_reports(report: dict[str, Any], json_path: Path, html_path: Path) -> None:
@@ -60,7 +58,7 @@ def _write_motors(motors: MotorDicts, catalogue: Catalogue, json_out: GatheredWr
     html_pieces: list[str] = []
     for index in range(len(motors)):
         json_text, html_text = writer.both(motors.review(index), index + 1)
-        json_pieces.append(_JSON_SEPARATOR + json_text if index else json_text)
+        json_pieces.append(OBJECT_SEPARATOR + json_text if index else json_text)
         html_pieces.append(html_text)
         if len(html_pieces) == MOTORS_PER_PIECE:
             json_out.write("".join(json_pieces))

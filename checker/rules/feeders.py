@@ -444,18 +444,17 @@ def _parts(limits: BranchLimits, column: str, fla_missing: bool) -> tuple:
 
 
 def branch_value(motor: Motor, column: str, ruleset: Ruleset, options: ReviewOptions,
-                 memo: _LimitsMemo | None | object = _ABSENT) -> BranchValue:
+                 memo: _LimitsMemo | None) -> BranchValue:
     """The largest branch device the motor is permitted for a device of ``column``'s type.
 
     Uses the branch-ocpd arithmetic itself (checker/rules/overcurrent.py
     ``branch_limits``) with the feeder's device type in place of the motor's
     own: the same table row, percentage, small-motor minimum and rounding
-    (CEC: the calculated value; NEC: raised to the next standard rating).
+    (CEC: the calculated value; NEC: raised to the next standard rating). ``memo``: the review's
+    (``_memo``), or None to work it out directly.
     """
     if BRANCH_CHECK not in ruleset.checks:
         return BranchValue(None, None, "", (), f"the ruleset has no {BRANCH_CHECK} check to size branch devices")
-    if memo is _ABSENT:
-        memo = _memo(ruleset, options)
     fla_missing = motor.record.get("fla_a") is None
     if memo is None:
         parts = _parts(branch_limits(_with_device(motor.record, column), ruleset, options), column, fla_missing)
