@@ -61,7 +61,7 @@ def _cmd_review(args) -> int:
     from checker.report.build import review_to_dict
     from checker.report.files import write_atomic
     from checker.report.text_summary import summary_text
-    from checker.report.write import write_reports
+    from checker.report.write import MotorParts, write_reports
     from checker.review import review_schedule
     from checker.rules.common import ReviewOptions
 
@@ -75,21 +75,32 @@ def _cmd_review(args) -> int:
     # A large review makes millions of small objects that form no cycles; the collector's default
     # thresholds would re-scan them hundreds of times (a third of the run at 10 000 motors).
     gc.set_threshold(100_000, 50, 100)
-    with Progress() as progress:  # on stderr, only for a terminal and only after a second
-        review = review_schedule(args.schedule, code=code, sheet=args.sheet, options=ReviewOptions(strict=strict),
-                                 amendments=amendments, progress=progress)
-        progress.stage("building the report")
-        report = review_to_dict(review, __version__, lazy=True)  # motors built as they are written
-        stem = args.schedule.stem
-        json_path = args.json or Path("reports") / f"{stem}.json"
-        html_path = args.html or Path("reports") / f"{stem}.html"
-        outputs = [json_path, html_path] + ([args.csv] if args.csv else [])
-        _refuse_overwriting_input(args.schedule, outputs)
-        progress.stage("writing the reports")
-        write_reports(report, json_path, html_path)
-        if args.csv:
-            from checker.report.csv_report import render_csv
-            write_atomic(args.csv, render_csv(report))
+    stem = args.schedule.stem
+    json_path = args.json or Path("reports") / f"{stem}.json"
+    html_path = args.html or Path("reports") / f"{stem}.html"
+    _refuse_overwriting_input(args.schedule, [json_path, html_path] + ([args.csv] if args.csv else []))
+    parts: list[MotorParts] = []
+
+    def write_motors_meanwhile(motors) -> None:  # a large review: motors written while the feeders are worked out
+        started = MotorParts.start(motors, json_path, html_path)
+        if started is not None:
+            parts.append(started)
+
+    try:
+        with Progress() as progress:  # on stderr, only for a terminal and only after a second
+            review = review_schedule(args.schedule, code=code, sheet=args.sheet,
+                                     options=ReviewOptions(strict=strict), amendments=amendments, progress=progress,
+                                     motors_checked=write_motors_meanwhile)
+            progress.stage("building the report")
+            report = review_to_dict(review, __version__, lazy=True)  # motors built as they are written
+            progress.stage("writing the reports")
+            write_reports(report, json_path, html_path, parts[0] if parts else None)
+            if args.csv:
+                from checker.report.csv_report import render_csv
+                write_atomic(args.csv, render_csv(report))
+    finally:
+        for started in parts:
+            started.discard()
     text = summary_text(report, max_lines=0 if args.quiet else 40)
     print(text)
     print(f"Reports: {html_path}  {json_path}" + (f"  {args.csv}" if args.csv else ""))

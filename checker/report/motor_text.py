@@ -94,6 +94,15 @@ class MotorText:
             template = None
         return texts, template
 
+    def count(self, reviews) -> None:
+        """Number and count the findings of ``reviews`` in the catalogue as writing them with
+        :meth:`both`, one after the other, would (a motor's reading problems, then its checks' findings)."""
+        for review in reviews:
+            for finding in review.motor.input_findings:
+                self._entry(finding)
+            for finding in review.findings:
+                self._entry(finding)
+
     def both(self, review: model.MotorReview, index: int) -> tuple[str, str]:
         """(JSON object, HTML block) of motor number ``index`` (1-based)."""
         motor = review.motor

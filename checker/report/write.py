@@ -6,13 +6,23 @@ The rest of each file comes from its own writer (``json_report.iter_json``, the 
 which leaves a marker where the motors go.
 The files are the same, byte for byte, as those ``json_report.dumps`` and
 ``html_report.render_html`` make of the eager report (tests/test_fast_paths.py).
+
+On a machine with a second processor, a large review's motors can be written by a second
+process (:class:`MotorParts`, started as soon as the motors are checked) while this one works
+out the feeder groups, which the top of each report summarises; the parts are then copied
+into place between the top and the rest of each file.
 """
 from __future__ import annotations
 
-from collections.abc import Iterator
+import os
+import shutil
+import signal
+import tempfile
+from collections.abc import Iterator, Sequence
 from pathlib import Path
 from typing import Any
 
+from checker import model
 from checker.report.build import MOTORS_HERE, MOTORS_PER_PIECE, MotorDicts, WrittenApart
 from checker.report.files import GatheredWriter, atomic_text_files, write_atomic_together
 from checker.report.html_motors import Catalogue
@@ -20,10 +30,16 @@ from checker.report.html_report import appendix_ids, iter_html
 from checker.report.json_report import OBJECT_SEPARATOR, iter_json
 from checker.report.motor_text import MotorText
 
+# A second process pays for itself from about this many motors (tests/bench: at 1 000 motors
+# the feeder groups and the motors' text take some 0.05 s each; forking and copying cost ~0.01 s).
+SECOND_PROCESS_FROM_MOTORS = 2_000
 
-def write_reports(report: dict[str, Any], json_path: Path, html_path: Path) -> None:
+
+def write_reports(report: dict[str, Any], json_path: Path, html_path: Path,
+                  parts: MotorParts | None = None) -> None:
     """Write ``report`` as JSON to ``json_path`` and as HTML to ``html_path``; both files are
-    replaced together, or neither is."""
+    replaced together, or neither is. ``parts``: the motors' text, being written by a second
+    process (:meth:`MotorParts.start`, given this report's motors and these paths)."""
     motors = report.get("motors")
     if not isinstance(motors, MotorDicts) or not len(motors):
         write_atomic_together([(json_path, iter_json(report)), (html_path, iter_html(report))])
@@ -35,11 +51,18 @@ def write_reports(report: dict[str, Any], json_path: Path, html_path: Path) -> N
             json_pieces, html_pieces = iter_json(report), iter_html(report)
             _copy_until_motors(json_pieces, json_out)
             _copy_until_motors(html_pieces, html_out)
-            _write_motors(motors, catalogue, json_out, html_out)
+            if parts is None:
+                _write_motors(motors, MotorText(motors.shared, catalogue), json_out, html_out)
+            else:
+                # The page's list of distinct findings, numbered as the other process numbers them.
+                MotorText(motors.shared, catalogue).count(motors.review(i) for i in range(len(motors)))
+                parts.copy_into(json_out, html_out)
             _copy_until_motors(json_pieces, json_out)  # the rest of each file
             _copy_until_motors(html_pieces, html_out)
     finally:
         motors.apart = None
+        if parts is not None:
+            parts.discard()
 
 
 def _copy_until_motors(pieces: Iterator[str], out: GatheredWriter) -> None:
@@ -50,10 +73,21 @@ def _copy_until_motors(pieces: Iterator[str], out: GatheredWriter) -> None:
         out.write(piece)
 
 
-def _write_motors(motors: MotorDicts, catalogue: Catalogue, json_out: GatheredWriter,
-                  html_out: GatheredWriter) -> None:
+class _Reviews:
+    """What ``_write_motors`` reads of a :class:`MotorDicts`: its length and each review."""
+
+    def __init__(self, reviews: Sequence[model.MotorReview]) -> None:
+        self.reviews = reviews
+
+    def __len__(self) -> int:
+        return len(self.reviews)
+
+    def review(self, index: int) -> model.MotorReview:
+        return self.reviews[index]
+
+
+def _write_motors(motors: MotorDicts | _Reviews, writer: MotorText, json_out: Any, html_out: Any) -> None:
     """Every motor's JSON line and HTML block, written as it is made."""
-    writer = MotorText(motors.shared, catalogue)
     json_pieces: list[str] = []
     html_pieces: list[str] = []
     for index in range(len(motors)):
@@ -66,3 +100,128 @@ def _write_motors(motors: MotorDicts, catalogue: Catalogue, json_out: GatheredWr
             json_pieces, html_pieces = [], []
     json_out.write("".join(json_pieces))
     html_out.write("".join(html_pieces))
+
+
+def _processors() -> int:
+    try:
+        return len(os.sched_getaffinity(0))
+    except AttributeError:  # not offered on this platform
+        return os.cpu_count() or 1
+
+
+class MotorParts:
+    """The motors' JSON lines and HTML blocks, written by a second process into two part files
+    beside the reports, to be copied into them by :func:`write_reports`.
+
+    The second process is a fork: it reads the very reviews this process holds, writes with its
+    own :class:`MotorText` (numbering distinct findings on first sight, as this process numbers
+    them again for the page's list) and leaves. It changes nothing this process sees; a failure
+    there is raised here, as one line, when the parts are copied.
+    """
+
+    def __init__(self, pid: int, json_part: str, html_part: str, errors: int) -> None:
+        self.pid, self.json_part, self.html_part, self.errors = pid, json_part, html_part, errors
+        self.status: int | None = None
+
+    @classmethod
+    def start(cls, reviews: Sequence[model.MotorReview], json_path: Path, html_path: Path,
+              at_least: int | None = None) -> MotorParts | None:
+        """Start writing ``reviews`` (the report's motors, in order) in a second process; None
+        (write them in this one) for fewer than ``at_least`` motors (default
+        ``SECOND_PROCESS_FROM_MOTORS``), one processor, or no fork."""
+        at_least = SECOND_PROCESS_FROM_MOTORS if at_least is None else at_least
+        if len(reviews) < max(at_least, 1) or not hasattr(os, "fork") or _processors() < 2:
+            return None
+        names = []
+        try:
+            for path in (Path(json_path), Path(html_path)):
+                path.parent.mkdir(parents=True, exist_ok=True)
+                handle, name = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".part", dir=path.parent)
+                os.close(handle)
+                names.append(name)
+            read_end, write_end = os.pipe()
+        except OSError:
+            for name in names:
+                _remove(name)
+            raise
+        pid = os.fork()
+        if pid == 0:  # the second process: write, say what went wrong if anything did, leave
+            os.close(read_end)
+            _write_parts_and_leave(reviews, names[0], names[1], write_end)
+        os.close(write_end)
+        return cls(pid, names[0], names[1], read_end)
+
+    def wait(self) -> None:
+        """Wait for the second process; raise ``OSError`` with its one-line message if it failed."""
+        if self.status is None:
+            _, status = os.waitpid(self.pid, 0)
+            self.status = os.waitstatus_to_exitcode(status)
+            with os.fdopen(self.errors, "rb") as stream:
+                message = stream.read(2000).decode("utf-8", "replace").strip()
+            self.errors = -1
+            if self.status != 0:
+                kind, *said = message.split("\t")
+                if kind == "os" and len(said) == 3:  # a part file could not be written: said as this process would
+                    number, reason, filename = said
+                    raise OSError(int(number) if number.isdigit() else 0, reason, filename or None)
+                raise RuntimeError(message or f"the process writing the motors ended with status {self.status}")
+
+    def copy_into(self, json_out: GatheredWriter, html_out: GatheredWriter) -> None:
+        """Wait for the parts and copy each into its report, after what was written so far."""
+        self.wait()
+        for out, name in ((json_out, self.json_part), (html_out, self.html_part)):
+            out.flush()
+            stream = out.stream
+            stream.flush()  # the text written so far is in the file: the part follows it
+            with open(name, "rb") as part:
+                shutil.copyfileobj(part, stream.buffer, 1 << 20)
+            stream.buffer.flush()
+
+    def discard(self) -> None:
+        """Stop the second process if it still runs, and remove the part files."""
+        if self.status is None:
+            try:
+                os.kill(self.pid, signal.SIGKILL)
+                os.waitpid(self.pid, 0)
+            except (ProcessLookupError, ChildProcessError):
+                pass
+            self.status = -signal.SIGKILL
+        if self.errors >= 0:
+            os.close(self.errors)
+            self.errors = -1
+        for name in (self.json_part, self.html_part):
+            _remove(name)
+
+
+def _remove(name: str) -> None:
+    try:
+        os.unlink(name)
+    except FileNotFoundError:
+        pass
+
+
+def _write_parts_and_leave(reviews: Sequence[model.MotorReview], json_name: str, html_name: str,
+                           errors: int) -> None:
+    """The second process's whole life: never returns into the caller's code."""
+    code = 1
+    try:
+        signal.signal(signal.SIGINT, signal.SIG_IGN)  # the first process answers an interrupt and stops this one
+        writer = MotorText({}, Catalogue(set()))
+        with open(json_name, "w", encoding="utf-8", newline="", buffering=1 << 20) as json_file, \
+                open(html_name, "w", encoding="utf-8", newline="", buffering=1 << 20) as html_file:
+            json_out, html_out = GatheredWriter(json_file), GatheredWriter(html_file)
+            _write_motors(_Reviews(reviews), writer, json_out, html_out)
+            json_out.flush()
+            html_out.flush()
+        code = 0
+    except BaseException as exc:  # noqa: BLE001 - said to the first process, which ends in one line
+        try:
+            if isinstance(exc, OSError):
+                text = "\t".join(["os", str(exc.errno or 0), str(exc.strerror or exc), str(exc.filename or "")])
+            else:
+                text = f"writing the motors failed: {type(exc).__name__}: {str(exc)[:200]}"
+            os.write(errors, text.encode("utf-8", "replace")[:2000])
+        except BaseException:  # noqa: BLE001 - nothing more can be said
+            pass
+    finally:
+        os._exit(code)

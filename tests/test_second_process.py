@@ -1,0 +1,165 @@
+"""The motors' part of the reports written by a second process (report/write.py ``MotorParts``).
+
+What is checked: the files are the same, byte for byte, as the one-process path and the eager
+renderings (``json_report.dumps``, ``html_report.render_html``); a failure in the second
+process ends in one line (exit 2 for a file problem, 3 for a bug) with no report replaced and
+no part file left; the command line uses it only from its threshold up.
+All schedules here are invented (the demo, the test fixtures and the benchmark generator).
+"""
+from __future__ import annotations
+
+import os
+import sys
+from pathlib import Path
+
+import pytest
+
+from checker import cli
+from checker.report import write
+from checker.report.build import review_to_dict
+from checker.report.html_report import render_html
+from checker.report.json_report import dumps
+from checker.report.motor_text import MotorText
+from checker.review import review_schedule
+
+pytestmark = pytest.mark.skipif(not hasattr(os, "fork"), reason="the second process is a fork (not on this platform)")
+
+ROOT = Path(__file__).resolve().parents[1]
+DEMO = ROOT / "fixtures" / "demo"
+sys.path.insert(0, str(Path(__file__).resolve().parent))
+from test_fast_paths import _bench_schedule_csv, more_schedules, schedule  # noqa: E402,F401 - shared fixtures
+
+
+@pytest.fixture(autouse=True)
+def two_processors(monkeypatch):
+    """As on the benchmark machine, whatever runs the tests."""
+    monkeypatch.setattr(write, "_processors", lambda: 2)
+
+
+def _review_with_parts(schedule: Path, tmp_path: Path):
+    started = []
+
+    def start(motors):
+        started.append(write.MotorParts.start(motors, tmp_path / "r.json", tmp_path / "r.html", at_least=1))
+
+    review = review_schedule(schedule, motors_checked=start)
+    assert len(started) == 1 and (started[0] is not None) == bool(review.motors)
+    return review, started[0]
+
+
+def _assert_files_equal_the_renderings(schedule: Path, tmp_path: Path) -> None:
+    review, parts = _review_with_parts(schedule, tmp_path)
+    write.write_reports(review_to_dict(review, "t", lazy=True), tmp_path / "r.json", tmp_path / "r.html", parts)
+    eager = review_to_dict(review, "t")
+    assert (tmp_path / "r.json").read_bytes() == dumps(eager).encode("utf-8")
+    assert (tmp_path / "r.html").read_bytes() == render_html(eager).encode("utf-8")
+    assert sorted(p.name for p in tmp_path.iterdir() if p.name.startswith(".")) == []  # no .tmp or .part file
+
+
+def test_parts_give_the_same_files(schedule, tmp_path):
+    _assert_files_equal_the_renderings(schedule, tmp_path)
+
+
+def test_parts_give_the_same_files_for_pdf_and_hostile_cells(more_schedules, tmp_path):
+    _assert_files_equal_the_renderings(more_schedules, tmp_path)
+
+
+def test_counting_numbers_findings_as_writing_does(schedule):
+    """The page's list of distinct findings, made without writing the motors, is the written one."""
+    from checker.report.html_motors import Catalogue
+
+    review = review_schedule(schedule)
+    written, counted = Catalogue(set()), Catalogue(set())
+    writer = MotorText({}, written)
+    for index, motor_review in enumerate(review.motors, start=1):
+        writer.both(motor_review, index)
+    MotorText({}, counted).count(review.motors)
+    assert counted.counts == written.counts and counted.heads == written.heads
+    assert counted.html() == written.html()
+    assert sum(counted.counts) == sum(len(r.findings) + len(r.motor.input_findings) for r in review.motors)
+
+
+def _cli(schedule: Path, tmp_path: Path, name: str, capsys) -> tuple[int, bytes, bytes, str]:
+    code = cli.main(["review", str(schedule), "--json", str(tmp_path / f"{name}.json"),
+                     "--html", str(tmp_path / f"{name}.html"), "--quiet"])
+    err = capsys.readouterr().err
+    json_bytes = (tmp_path / f"{name}.json").read_bytes() if (tmp_path / f"{name}.json").exists() else b""
+    html_bytes = (tmp_path / f"{name}.html").read_bytes() if (tmp_path / f"{name}.html").exists() else b""
+    return code, json_bytes, html_bytes, err
+
+
+def test_command_line_gives_the_same_reports_with_and_without(tmp_path, capsys, monkeypatch):
+    schedule = _bench_schedule_csv(tmp_path, 300)
+    used = []
+    real_start = write.MotorParts.start.__func__
+
+    def counting_start(cls, *args, **kwargs):
+        parts = real_start(cls, *args, **kwargs)
+        used.append(parts is not None)
+        return parts
+
+    monkeypatch.setattr(write.MotorParts, "start", classmethod(counting_start))
+    one = _cli(schedule, tmp_path, "one", capsys)  # 300 motors: below the threshold
+    monkeypatch.setattr(write, "SECOND_PROCESS_FROM_MOTORS", 1)
+    two = _cli(schedule, tmp_path, "two", capsys)
+    assert used == [False, True]
+    assert one[0] == two[0] and one[0] in (0, 1)
+    assert one[1] == two[1] and one[2] == two[2] and len(one[1]) > 100_000
+
+
+def _failing_run(tmp_path, capsys, monkeypatch, error: Exception) -> tuple[int, str]:
+    """A review whose second process fails while writing a motor (the fork inherits the patch)."""
+    real_both = MotorText.both
+
+    def failing_both(self, review, index):
+        if index == 3:
+            raise error
+        return real_both(self, review, index)
+
+    monkeypatch.setattr(MotorText, "both", failing_both)
+    monkeypatch.setattr(write, "SECOND_PROCESS_FROM_MOTORS", 1)
+    (tmp_path / "out.json").write_text("old json")
+    (tmp_path / "out.html").write_text("old html")
+    code = cli.main(["review", str(DEMO / "northfield-pump-station.csv"), "--json", str(tmp_path / "out.json"),
+                     "--html", str(tmp_path / "out.html"), "--quiet"])
+    err = capsys.readouterr().err
+    assert (tmp_path / "out.json").read_text() == "old json" and (tmp_path / "out.html").read_text() == "old html"
+    assert [p.name for p in tmp_path.iterdir() if p.name.startswith(".")] == []
+    assert err.count("\n") == 1 and "Traceback" not in err
+    return code, err
+
+
+def test_a_file_problem_in_the_second_process_is_one_line_and_exit_2(tmp_path, capsys, monkeypatch):
+    code, err = _failing_run(tmp_path, capsys, monkeypatch, OSError(28, "No space left on device", "/x/r.json.part"))
+    assert code == cli.EXIT_UNUSABLE
+    assert err == "motorcheck: error: No space left on device (/x/r.json.part)\n"
+
+
+def test_a_bug_in_the_second_process_is_one_line_and_exit_3(tmp_path, capsys, monkeypatch):
+    code, err = _failing_run(tmp_path, capsys, monkeypatch, ZeroDivisionError("division by zero"))
+    assert code == cli.EXIT_BUG
+    assert err.startswith("motorcheck: internal error (RuntimeError: writing the motors failed: ZeroDivisionError")
+
+
+def test_discard_stops_a_running_second_process_and_removes_its_parts(tmp_path, monkeypatch):
+    def slow_both(self, review, index):
+        import time
+        time.sleep(60)
+
+    monkeypatch.setattr(MotorText, "both", slow_both)
+    review = review_schedule(DEMO / "northfield-pump-station.csv")
+    parts = write.MotorParts.start(review.motors, tmp_path / "r.json", tmp_path / "r.html", at_least=1)
+    assert parts is not None and Path(parts.json_part).exists()
+    parts.discard()
+    assert not Path(parts.json_part).exists() and not Path(parts.html_part).exists()
+    with pytest.raises(ChildProcessError):
+        os.waitpid(parts.pid, os.WNOHANG)  # stopped and reaped
+
+
+def test_no_second_process_for_a_small_review_or_one_processor(tmp_path, monkeypatch):
+    review = review_schedule(DEMO / "northfield-pump-station.csv")
+    assert len(review.motors) < write.SECOND_PROCESS_FROM_MOTORS
+    assert write.MotorParts.start(review.motors, tmp_path / "r.json", tmp_path / "r.html") is None
+    monkeypatch.setattr(write, "_processors", lambda: 1)
+    assert write.MotorParts.start(review.motors, tmp_path / "r.json", tmp_path / "r.html", at_least=1) is None
+    assert list(tmp_path.iterdir()) == []
