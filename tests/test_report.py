@@ -371,3 +371,52 @@ def test_plain_record_is_plain(value):
     values it hands back to ``plain`` (sets, non-text keys, big integers, paths)."""
     assert build.plain_record(value) == build.plain(value)
     assert json.dumps(build.plain_record(value), allow_nan=False)
+
+
+# --------------------------------------------------------------------------- the page template compiled ahead
+
+def test_compiled_page_is_what_jinja_makes_of_the_template():
+    """The file shipped is the template as this Jinja compiles it; remake it with
+    ``write_compiled_page()`` after changing the template."""
+    import jinja2
+
+    from checker.report import html_report
+
+    path = html_report.TEMPLATES_DIR / html_report.COMPILED_NAME
+    shipped = path.read_text(encoding="utf-8")
+    version_line = next(line for line in shipped.splitlines() if line.startswith("# jinja-version: "))
+    if version_line != f"# jinja-version: {jinja2.__version__}":
+        pytest.skip(f"compiled with another Jinja ({version_line}); this one compiles the template at run time")
+    assert shipped == html_report.compiled_page_text(html_report._environment()), \
+        "templates/review.html.compiled is stale: run write_compiled_page()"
+
+
+def test_page_from_the_compiled_template_equals_the_page_compiled_now(tmp_path, monkeypatch):
+    from jinja2 import FileSystemLoader
+
+    from checker.report import html_report
+
+    from checker.review import review_schedule
+
+    root = Path(__file__).resolve().parents[1]
+    report = review_to_dict(review_schedule(root / "fixtures" / "demo" / "northfield-pump-station.xlsx"), "t")
+    env = html_report._environment.__wrapped__()  # a fresh environment: the shared one is not changed
+    ahead = html_report.page_template(env)
+    import jinja2
+
+    shipped_version = (REPORT_DIR / "templates" / html_report.COMPILED_NAME).read_text(encoding="utf-8").split(
+        "# jinja-version: ", 1)[1].split("\n", 1)[0]
+    made_ahead = ahead.filename.endswith(html_report.COMPILED_NAME)
+    assert made_ahead == (shipped_version == jinja2.__version__)  # another Jinja compiles the template itself
+    now = html_report._environment.__wrapped__().get_template(html_report.TEMPLATE_NAME)
+    context = html_report._context(report)
+    assert "".join(ahead.generate(**context)) == "".join(now.generate(**html_report._context(report)))
+    # a stale compiled file (another template) is not used
+    monkeypatch.setattr(html_report, "TEMPLATES_DIR", tmp_path)
+    (tmp_path / html_report.TEMPLATE_NAME).write_text("<p>{{ code }}</p>\n", encoding="utf-8")
+    (tmp_path / html_report.COMPILED_NAME).write_text(
+        (REPORT_DIR / "templates" / html_report.COMPILED_NAME).read_text(encoding="utf-8"),
+        encoding="utf-8")
+    env = html_report._environment.__wrapped__()
+    env.loader = FileSystemLoader(str(tmp_path))
+    assert html_report.page_template(env).render(code="x") == "<p>x</p>\n"
