@@ -101,8 +101,45 @@ class _CheckMemo:
         self.direct: set[str] = set()
         self.all_direct = False
         self.frozen = FrozenValues()
+        # Whole motors: for a list of checks each keyed by the fields it reads, a motor agreeing with
+        # an earlier one on all those fields gets that motor's results at one look-up. Any change of
+        # what a check reads (or a check run directly) moves ``version`` on and forgets them.
+        self.version = 0
+        self.wholes: dict[tuple, tuple] = {}  # check ids -> (version, fields, results by frozen values)
+
+    def _whole(self, check_ids: tuple) -> tuple | None:
+        """(fields, results by their frozen values) for motors checked by ``check_ids``, or None."""
+        plan = self.wholes.get(check_ids)
+        if plan is not None and plan[0] == self.version:
+            return plan[1], plan[2]
+        if self.all_direct or any(cid not in self.keys or cid in self.direct for cid in check_ids):
+            return None
+        fields = tuple(sorted({field for cid in check_ids for field in self.fields[cid]}, key=str))
+        self.wholes[check_ids] = (self.version, fields, {})
+        return fields, self.wholes[check_ids][2]
 
     def run(self, motor: Motor, check_ids: list[str]) -> tuple:
+        record = motor.record
+        ids = tuple(check_ids)
+        whole = self._whole(ids)
+        if whole is None:
+            return self._run(motor, check_ids)
+        fields, results = whole
+        frozen = self.frozen
+        try:
+            key = tuple([frozen(record.get(field, _MISSING)) for field in fields])
+            hit = results.get(key)
+        except TypeError:  # a value that cannot be hashed
+            return self._run(motor, check_ids)
+        if hit is not None:
+            return hit
+        version = self.version
+        hit = self._run(motor, check_ids)
+        if self.version == version:  # nothing read anew: the same fields decide it for every motor
+            results[key] = hit
+        return hit
+
+    def _run(self, motor: Motor, check_ids: list[str]) -> tuple:
         findings: list = []
         record = motor.record
         try:
@@ -116,6 +153,7 @@ class _CheckMemo:
                 continue
             if cid not in self.keys:
                 self.fields[cid], self.keys[cid], self.found[cid] = (), _key_getter(()), {}
+                self.version += 1
             cache = self.found[cid]
             try:
                 key = self.keys[cid](frozen)
@@ -133,11 +171,14 @@ class _CheckMemo:
                 record.clear()
                 record.update(dict.items(log))
                 self.all_direct, frozen = True, None
+                self.version += 1
                 continue
             if log.whole or view.others or key is None:
                 self.direct.add(cid)
+                self.version += 1
                 continue
             if not log.read <= set(self.fields[cid]):
+                self.version += 1
                 fields = self.fields[cid] = tuple(sorted(set(self.fields[cid]) | log.read, key=str))
                 self.keys[cid] = _key_getter(fields)
                 cache.clear()
@@ -222,14 +263,18 @@ def _read_grid(grid: Grid, tables: list[LocatedTable], motors: list, skipped: li
                 entry = not_run.setdefault(cid, {"check": cid, "reason": CHECKS[cid].missing_reason, "motors": 0})
                 entry["motors"] += len(result.motors)
         progress.stage("checking motors")
+        split: dict[int, tuple] = {}  # id(results) -> (results, findings, checks not run): results are shared
         for number, motor in enumerate(result.motors, start=1):
             results = memo.run(motor, active)
-            skipped_checks = tuple(r for r in results if isinstance(r, NotRun))
+            known = split.get(id(results))
+            if known is None or known[0] is not results:
+                known = split[id(results)] = (results, tuple(r for r in results if not isinstance(r, NotRun)),
+                                              tuple(r for r in results if isinstance(r, NotRun)))
+            _, findings, skipped_checks = known
             for item in skipped_checks:
                 entry = not_run.setdefault((item.check, item.reason),
                                            {"check": item.check, "reason": item.reason, "motors": 0})
                 entry["motors"] += 1
-            findings = tuple(r for r in results if not isinstance(r, NotRun))
             motors.append(MotorReview(motor, findings, skipped_checks))
             progress.step(number, len(result.motors))
         for row in result.skipped:

@@ -99,6 +99,29 @@ def test_equal_values_share_one_run(monkeypatch):
     assert calls == [5.0, 5] and first[0] is second[0] and third[0].message == "5 hp"
 
 
+def test_whole_motor_reuse_follows_what_the_checks_read(monkeypatch):
+    """A motor agreeing with an earlier one on every field the checks read gets its very results;
+    a check that reads a new field for some motor makes every later motor be judged on it too."""
+    calls = []
+
+    def probe(motor, ruleset, options):
+        hp = motor.record["hp"]
+        calls.append(hp)  # (not the tag: a check reading it is run for every motor)
+        extra = f" {motor.record['fla_a']} A" if hp > 10 else ""  # reads fla_a only for large motors
+        return [Finding("probe", "r", Status.PASS, f"{hp} hp{extra}")]
+
+    memo = _memo_with(monkeypatch, probe)
+    a = memo.run(_motor("A", hp=5.0, fla_a=1.0), ["probe"])
+    b = memo.run(_motor("B", hp=5.0, fla_a=2.0), ["probe"])
+    c = memo.run(_motor("C", hp=20.0, fla_a=1.0), ["probe"])
+    d = memo.run(_motor("D", hp=20.0, fla_a=2.0), ["probe"])
+    e = memo.run(_motor("E", hp=20.0, fla_a=2.0, kw=15.0), ["probe"])  # kw is read by no check
+    f = memo.run(_motor("F", hp=5.0, fla_a=3.0), ["probe"])
+    assert b[0] is a[0] and e is d  # E: one look-up, the very results of D
+    assert [r[0].message for r in (a, c, d, f)] == ["5.0 hp", "20.0 hp 1.0 A", "20.0 hp 2.0 A", "5.0 hp"]
+    assert calls == [5.0, 20.0, 20.0, 5.0]  # A, C, D and F
+
+
 def test_a_check_reading_the_tag_is_run_for_every_motor(monkeypatch):
     memo = _memo_with(monkeypatch, lambda motor, r, o: [Finding("probe", "r", Status.PASS, motor.tag)])
     messages = [memo.run(_motor(tag, hp=5.0), ["probe"])[0].message for tag in ("A", "B", "C")]
