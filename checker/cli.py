@@ -81,8 +81,8 @@ def _cmd_review(args) -> int:
     _refuse_overwriting_input(args.schedule, [json_path, html_path] + ([args.csv] if args.csv else []))
     parts: list[MotorParts] = []
 
-    def write_motors_meanwhile(motors) -> None:  # a large review: motors written while the feeders are worked out
-        started = MotorParts.start(motors, json_path, html_path)
+    def write_motors_meanwhile(motors, ruleset) -> None:  # a large review: motors written while feeders are worked out
+        started = MotorParts.start(motors, json_path, html_path, {spec.id for spec in ruleset.checks.values()})
         if started is not None:
             parts.append(started)
 

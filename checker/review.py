@@ -330,7 +330,7 @@ def _sheet_notes(grids: list[Grid], tables: list[dict]) -> list[str]:
 def review_schedule(path: Path, code: str | None = "cec-2015", sheet: str | None = None,
                     options: ReviewOptions | None = None, amendments: str | Path | None = None,
                     progress: Progress | None = None,
-                    motors_checked: Callable[[tuple[MotorReview, ...]], None] | None = None) -> Review:
+                    motors_checked: Callable[[tuple[MotorReview, ...], Ruleset], None] | None = None) -> Review:
     """Review one submitted schedule file against one ruleset.
 
     ``code`` names the ruleset (None: the default, or the base of
@@ -338,8 +338,9 @@ def review_schedule(path: Path, code: str | None = "cec-2015", sheet: str | None
     Raises InputError (the file cannot be used) or RulesetError (the ruleset
     is invalid); both carry a one-line message for the reviewer. ``progress``
     hears of each stage (see ``checker.progress``). ``motors_checked`` is given the
-    reviewed motors, as the review will hold them, once every motor is checked and before
-    the feeder groups are worked out (the command line starts writing them there).
+    reviewed motors, as the review will hold them, and the ruleset once every motor is
+    checked and before the feeder groups are worked out (the command line starts writing
+    them there).
     """
     options = options or ReviewOptions()
     progress = progress or Progress(enabled=False)
@@ -380,7 +381,7 @@ def review_schedule(path: Path, code: str | None = "cec-2015", sheet: str | None
     notes[:0] = _sheet_notes(grids, tables)
     notes.extend(_duplicate_tag_notes(motors))
     if motors_checked is not None:
-        motors_checked(tuple(motors))
+        motors_checked(tuple(motors), ruleset)
     # Group checks run after every motor is read: a feeder table may come on a later sheet.
     progress.stage("checking feeders")
     feeders = review_feeders([m.motor for m in motors], feeder_rows, ruleset, options, GROUP_CHECKS)

@@ -36,19 +36,22 @@ def two_processors(monkeypatch):
     monkeypatch.setattr(write, "_processors", lambda: 2)
 
 
-def _review_with_parts(schedule: Path, tmp_path: Path):
+def _review_with_parts(schedule: Path, tmp_path: Path, appendix: bool = True):
+    """``appendix`` False: the second process is not told the appendix's checks, so its
+    'Findings in full' cannot be used and this process makes its own."""
     started = []
 
-    def start(motors):
-        started.append(write.MotorParts.start(motors, tmp_path / "r.json", tmp_path / "r.html", at_least=1))
+    def start(motors, ruleset):
+        ids = {spec.id for spec in ruleset.checks.values()} if appendix else set()
+        started.append(write.MotorParts.start(motors, tmp_path / "r.json", tmp_path / "r.html", ids, at_least=1))
 
     review = review_schedule(schedule, motors_checked=start)
     assert len(started) == 1 and (started[0] is not None) == bool(review.motors)
     return review, started[0]
 
 
-def _assert_files_equal_the_renderings(schedule: Path, tmp_path: Path) -> None:
-    review, parts = _review_with_parts(schedule, tmp_path)
+def _assert_files_equal_the_renderings(schedule: Path, tmp_path: Path, appendix: bool = True) -> None:
+    review, parts = _review_with_parts(schedule, tmp_path, appendix)
     write.write_reports(review_to_dict(review, "t", lazy=True), tmp_path / "r.json", tmp_path / "r.html", parts)
     eager = review_to_dict(review, "t")
     assert (tmp_path / "r.json").read_bytes() == dumps(eager).encode("utf-8")
@@ -58,6 +61,21 @@ def _assert_files_equal_the_renderings(schedule: Path, tmp_path: Path) -> None:
 
 def test_parts_give_the_same_files(schedule, tmp_path):
     _assert_files_equal_the_renderings(schedule, tmp_path)
+
+
+def test_parts_give_the_same_files_when_this_process_lists_the_findings_itself(schedule, tmp_path, monkeypatch):
+    counted = []
+    real_count = MotorText.count
+
+    def count(self, reviews):
+        counted.append(True)
+        return real_count(self, reviews)
+
+    monkeypatch.setattr(MotorText, "count", count)
+    _assert_files_equal_the_renderings(schedule, tmp_path, appendix=False)
+    assert counted == [True]
+    _assert_files_equal_the_renderings(schedule, tmp_path, appendix=True)
+    assert counted == [True]  # told the appendix's checks: the second process's list is used
 
 
 def test_parts_give_the_same_files_for_pdf_and_hostile_cells(more_schedules, tmp_path):

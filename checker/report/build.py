@@ -271,10 +271,11 @@ class WrittenApart:
     the motors go instead of writing them. ``catalogue`` is the HTML page's numbering of distinct
     findings, shared with the motor writer."""
 
-    __slots__ = ("catalogue",)
+    __slots__ = ("catalogue", "findings_elsewhere")
 
-    def __init__(self, catalogue: Any) -> None:
+    def __init__(self, catalogue: Any, findings_elsewhere: bool = False) -> None:
         self.catalogue = catalogue
+        self.findings_elsewhere = findings_elsewhere  # the page's 'Findings in full' too: FINDINGS_HERE
 
 
 class _MotorsHere(str):
@@ -287,6 +288,7 @@ class _MotorsHere(str):
 
 
 MOTORS_HERE = _MotorsHere("\x00motors written here\x00")
+FINDINGS_HERE = _MotorsHere("\x00findings in full written here\x00")
 
 
 class MotorDicts(Sequence):

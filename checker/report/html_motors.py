@@ -21,7 +21,7 @@ from typing import Any
 
 from markupsafe import Markup
 
-from checker.report.build import MOTORS_HERE, MOTORS_PER_PIECE, shared_part
+from checker.report.build import FINDINGS_HERE, MOTORS_HERE, MOTORS_PER_PIECE, shared_part
 
 # Worst first; the labels shown for each status.
 STATUS_LABELS = {"fail": "FAIL", "needs-info": "NEEDS INFO", "pass": "PASS"}
@@ -208,6 +208,9 @@ class MotorsSection:
         if not self.done:
             for _ in self:
                 pass
+        apart = getattr(self.motors, "apart", None)
+        if apart is not None and apart.findings_elsewhere:  # written by report/write.py too
+            return FINDINGS_HERE
         return Markup(self.catalogue.html())
 
 

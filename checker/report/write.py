@@ -23,7 +23,7 @@ from pathlib import Path
 from typing import Any
 
 from checker import model
-from checker.report.build import MOTORS_HERE, MOTORS_PER_PIECE, MotorDicts, WrittenApart
+from checker.report.build import FINDINGS_HERE, MOTORS_HERE, MOTORS_PER_PIECE, MotorDicts, WrittenApart
 from checker.report.files import GatheredWriter, atomic_text_files, write_atomic_together
 from checker.report.html_motors import Catalogue
 from checker.report.html_report import appendix_ids, iter_html
@@ -45,32 +45,40 @@ def write_reports(report: dict[str, Any], json_path: Path, html_path: Path,
         write_atomic_together([(json_path, iter_json(report)), (html_path, iter_html(report))])
         return
     catalogue = Catalogue(appendix_ids(report))
-    motors.apart = WrittenApart(catalogue)
+    # The second process writes the page's 'Findings in full' too, when it links the same rules.
+    findings_apart = parts is not None and parts.appendix_ids == catalogue.appendix_ids
+    motors.apart = WrittenApart(catalogue, findings_elsewhere=findings_apart)
     try:
         with atomic_text_files([json_path, html_path]) as (json_out, html_out):
             json_pieces, html_pieces = iter_json(report), iter_html(report)
-            _copy_until_motors(json_pieces, json_out)
-            _copy_until_motors(html_pieces, html_out)
+            _copy_until_marker(json_pieces, json_out)
+            _copy_until_marker(html_pieces, html_out)
             if parts is None:
                 _write_motors(motors, MotorText(motors.shared, catalogue), json_out, html_out)
             else:
-                # The page's list of distinct findings, numbered as the other process numbers them.
-                MotorText(motors.shared, catalogue).count(motors.review(i) for i in range(len(motors)))
+                if not findings_apart:  # the page's list of distinct findings, numbered as they were written
+                    MotorText(motors.shared, catalogue).count(motors.review(i) for i in range(len(motors)))
                 parts.copy_into(json_out, html_out)
-            _copy_until_motors(json_pieces, json_out)  # the rest of each file
-            _copy_until_motors(html_pieces, html_out)
+            _copy_until_marker(json_pieces, json_out)  # the rest of the JSON
+            if _copy_until_marker(html_pieces, html_out) is FINDINGS_HERE:
+                parts.copy_findings_into(html_out)
+                _copy_until_marker(html_pieces, html_out)  # the rest of the page
     finally:
         motors.apart = None
         if parts is not None:
             parts.discard()
 
 
-def _copy_until_motors(pieces: Iterator[str], out: GatheredWriter) -> None:
-    """Write pieces until the motors' marker (or the end)."""
+def _copy_until_marker(pieces: Iterator[str], out: GatheredWriter) -> str | None:
+    """Write pieces until a marker (the motors', or the findings in full's) and return it;
+    None at the end."""
     for piece in pieces:
         if piece == MOTORS_HERE:
-            return
+            return MOTORS_HERE
+        if piece == FINDINGS_HERE:
+            return FINDINGS_HERE
         out.write(piece)
+    return None
 
 
 class _Reviews:
@@ -119,22 +127,25 @@ class MotorParts:
     there is raised here, as one line, when the parts are copied.
     """
 
-    def __init__(self, pid: int, json_part: str, html_part: str, errors: int) -> None:
-        self.pid, self.json_part, self.html_part, self.errors = pid, json_part, html_part, errors
+    def __init__(self, pid: int, names: list[str], errors: int, appendix_ids: set[str]) -> None:
+        self.pid, self.errors, self.appendix_ids = pid, errors, appendix_ids
+        self.json_part, self.html_part, self.findings_part = names
         self.status: int | None = None
 
     @classmethod
     def start(cls, reviews: Sequence[model.MotorReview], json_path: Path, html_path: Path,
-              at_least: int | None = None) -> MotorParts | None:
+              appendix_ids: set[str] = frozenset(), at_least: int | None = None) -> MotorParts | None:
         """Start writing ``reviews`` (the report's motors, in order) in a second process; None
         (write them in this one) for fewer than ``at_least`` motors (default
-        ``SECOND_PROCESS_FROM_MOTORS``), one processor, or no fork."""
+        ``SECOND_PROCESS_FROM_MOTORS``), one processor, or no fork. ``appendix_ids``: the
+        checks the page's appendix describes (``html_report.appendix_ids`` of the report to
+        come), for the rule links of the page's 'Findings in full', which it writes too."""
         at_least = SECOND_PROCESS_FROM_MOTORS if at_least is None else at_least
         if len(reviews) < max(at_least, 1) or not hasattr(os, "fork") or _processors() < 2:
             return None
         names = []
         try:
-            for path in (Path(json_path), Path(html_path)):
+            for path in (Path(json_path), Path(html_path), Path(html_path)):
                 path.parent.mkdir(parents=True, exist_ok=True)
                 handle, name = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".part", dir=path.parent)
                 os.close(handle)
@@ -145,11 +156,12 @@ class MotorParts:
                 _remove(name)
             raise
         pid = os.fork()
+        appendix_ids = {str(check) for check in appendix_ids}
         if pid == 0:  # the second process: write, say what went wrong if anything did, leave
             os.close(read_end)
-            _write_parts_and_leave(reviews, names[0], names[1], write_end)
+            _write_parts_and_leave(reviews, names, appendix_ids, write_end)
         os.close(write_end)
-        return cls(pid, names[0], names[1], read_end)
+        return cls(pid, names, read_end, appendix_ids)
 
     def wait(self) -> None:
         """Wait for the second process; raise ``OSError`` with its one-line message if it failed."""
@@ -167,15 +179,15 @@ class MotorParts:
                 raise RuntimeError(message or f"the process writing the motors ended with status {self.status}")
 
     def copy_into(self, json_out: GatheredWriter, html_out: GatheredWriter) -> None:
-        """Wait for the parts and copy each into its report, after what was written so far."""
+        """Wait for the parts and copy the motors' into each report, after what was written so far."""
         self.wait()
-        for out, name in ((json_out, self.json_part), (html_out, self.html_part)):
-            out.flush()
-            stream = out.stream
-            stream.flush()  # the text written so far is in the file: the part follows it
-            with open(name, "rb") as part:
-                shutil.copyfileobj(part, stream.buffer, 1 << 20)
-            stream.buffer.flush()
+        _append(self.json_part, json_out)
+        _append(self.html_part, html_out)
+
+    def copy_findings_into(self, html_out: GatheredWriter) -> None:
+        """Copy the page's 'Findings in full' (after :meth:`copy_into`)."""
+        self.wait()
+        _append(self.findings_part, html_out)
 
     def discard(self) -> None:
         """Stop the second process if it still runs, and remove the part files."""
@@ -189,8 +201,18 @@ class MotorParts:
         if self.errors >= 0:
             os.close(self.errors)
             self.errors = -1
-        for name in (self.json_part, self.html_part):
+        for name in (self.json_part, self.html_part, self.findings_part):
             _remove(name)
+
+
+def _append(name: str, out: GatheredWriter) -> None:
+    """Copy the file ``name`` to the end of what ``out`` has written."""
+    out.flush()
+    stream = out.stream
+    stream.flush()  # the text written so far is in the file: the part follows it
+    with open(name, "rb") as part:
+        shutil.copyfileobj(part, stream.buffer, 1 << 20)
+    stream.buffer.flush()
 
 
 def _remove(name: str) -> None:
@@ -200,19 +222,22 @@ def _remove(name: str) -> None:
         pass
 
 
-def _write_parts_and_leave(reviews: Sequence[model.MotorReview], json_name: str, html_name: str,
+def _write_parts_and_leave(reviews: Sequence[model.MotorReview], names: list[str], appendix_ids: set[str],
                            errors: int) -> None:
     """The second process's whole life: never returns into the caller's code."""
     code = 1
     try:
         signal.signal(signal.SIGINT, signal.SIG_IGN)  # the first process answers an interrupt and stops this one
-        writer = MotorText({}, Catalogue(set()))
-        with open(json_name, "w", encoding="utf-8", newline="", buffering=1 << 20) as json_file, \
-                open(html_name, "w", encoding="utf-8", newline="", buffering=1 << 20) as html_file:
+        catalogue = Catalogue(appendix_ids)
+        writer = MotorText({}, catalogue)
+        with open(names[0], "w", encoding="utf-8", newline="", buffering=1 << 20) as json_file, \
+                open(names[1], "w", encoding="utf-8", newline="", buffering=1 << 20) as html_file:
             json_out, html_out = GatheredWriter(json_file), GatheredWriter(html_file)
             _write_motors(_Reviews(reviews), writer, json_out, html_out)
             json_out.flush()
             html_out.flush()
+        with open(names[2], "w", encoding="utf-8", newline="") as findings_file:
+            findings_file.write(catalogue.html())
         code = 0
     except BaseException as exc:  # noqa: BLE001 - said to the first process, which ends in one line
         try:
