@@ -16,6 +16,8 @@ from html.parser import HTMLParser
 from pathlib import Path
 
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from checker import model
 from checker.model import Finding, Motor, MotorReview, Review, SkippedRow, SourceRef, Status
@@ -420,3 +422,137 @@ def test_page_from_the_compiled_template_equals_the_page_compiled_now(tmp_path, 
     env = html_report._environment.__wrapped__()
     env.loader = FileSystemLoader(str(tmp_path))
     assert html_report.page_template(env).render(code="x") == "<p>x</p>\n"
+
+
+
+# --------------------------------------------------------------------------- feeder articles written in Python
+
+# The Jinja loop the feeder section was written with before html_report.feeder_articles took its place:
+# kept here as the reference the Python must match, character for character.
+_FEEDER_LOOP = """{% for group in feeders %}
+{% set listed = group.get('feeder') %}
+{% set record = (listed or {}).get('record') or {} %}
+{% set computed = group.get('computed') or {} %}
+<article class="feeder st-{{ group.get('status') }}" id="feeder-{{ loop.index }}">
+<div class="fd-head"><span class="badge st-{{ group.get('status') }}">{% if group.get('status') == 'not-checked' %}FOR INFORMATION{% else %}{{ group.get('status')|status_label }}{% endif %}</span> <span class="grp">{{ group.get('group') }}</span>{% if listed %} <span>feeder {{ record.get('name', '') }}{% if record.get('from') %} from {{ record.get('from') }}{% endif %}</span>{% else %} <span class="empty">no feeder listed</span>{% endif %} <span class="loc">{{ ((listed or {}).get('source') or {}).get('label', '') }}</span></div>
+<div class="fd-body">
+{% if group.get('motors') %}
+<p class="fd-motors">{{ group.get('motors')|length }} motor{{ '' if group.get('motors')|length == 1 else 's' }}: {{ group.get('motors')|tag_list }}</p>
+{% endif %}
+{% if 'min_ampacity_a' in computed or computed.get('max_device') %}
+<div class="fd-figs">
+{% if 'min_ampacity_a' in computed %}
+<div class="fd-fig"><span class="l">Minimum ampacity{% if computed.get('ampacity_rule') %} ({{ computed.get('ampacity_rule') }}){% endif %}</span>{% if computed.get('min_ampacity_a') is not none %}<span class="n">{{ computed.get('min_ampacity_a')|num }} A</span>{% else %}<span class="n">at least {{ computed.get('ampacity_counted_a')|num }} A</span><span class="sub">some motors could not be counted</span>{% endif %}{% if computed.get('listed_conductor') %}<span class="sub">listed: {{ computed.get('listed_conductor') }}</span>{% endif %}</div>
+{% endif %}
+{% for device in computed.get('max_device') or [] %}
+<div class="fd-fig"><span class="l">Maximum device, {{ (device.get('device') or '')|replace('-', ' ') }}{% if computed.get('device_rule') %} ({{ computed.get('device_rule') }}){% endif %}</span>{% if device.get('limit_a') is not none %}<span class="n">{{ device.get('limit_a')|num }} A</span>{% elif device.get('counted_a') is not none %}<span class="n">at least {{ device.get('counted_a')|num }} A</span>{% else %}<span class="n">&mdash;</span>{% endif %}{% if device.get('standard_a') is not none %}<span class="sub">largest standard rating not above it: {{ device.get('standard_a')|num }} A</span>{% endif %}{% if loop.first and computed.get('listed_device') %}<span class="sub">listed: {{ computed.get('listed_device') }}</span>{% endif %}</div>
+{% endfor %}
+</div>
+{% endif %}
+{% if group.get('findings') %}
+<div class="scroll">
+<table class="grid findings">
+<colgroup><col class="c-status"><col class="c-rule"><col class="c-message"><col class="c-values"><col class="c-work"></colgroup>
+<thead><tr><th scope="col">Status</th><th scope="col">Rule</th><th scope="col">Finding</th><th scope="col">Limit / provided</th><th scope="col">Working</th></tr></thead>
+<tbody>
+{% for finding in group.get('findings') %}
+<tr>
+<td><span class="badge st-{{ finding.get('status') }}">{{ finding.get('status')|status_label }}</span></td>
+<td>{% if finding.get('check') in appendix_ids %}<a href="#check-{{ finding.get('check')|anchor }}">{{ finding.get('rule') }}</a>{% else %}{{ finding.get('rule') }}{% endif %}</td>
+<td>{{ finding.get('message') }}{% if finding.get('citation') %}<span class="cite">{{ finding.get('citation') }}</span>{% endif %}{% for cell in finding.get('cells') or [] %}<span class="cite">cell <code>{{ cell.get('label') }}</code></span>{% endfor %}</td>
+<td>{% if finding.get('limit') is not none or finding.get('provided') is not none %}<span class="lp"><span class="k">Limit</span> {{ finding.get('limit')|num }} {{ finding.get('unit') or '' }}</span><span class="lp"><span class="k">Provided</span> {{ finding.get('provided')|num }} {{ finding.get('unit') or '' }}</span>{% else %}<span class="empty">none</span>{% endif %}</td>
+<td>
+{% if finding.get('trail') %}
+<ol class="trail">
+{{ finding.get('trail')|list_items }}
+</ol>
+{% endif %}
+{% if finding.get('assumptions') %}
+<p class="assume-h">Assumed</p>
+<ul class="assume">
+{{ finding.get('assumptions')|list_items }}
+</ul>
+{% endif %}
+</td>
+</tr>
+{% endfor %}
+</tbody>
+</table>
+</div>
+{% elif computed.get('trail') %}
+<details class="fd-work">
+<summary>Working</summary>
+<ol class="trail">
+{{ computed.get('trail')|list_items }}
+</ol>
+{% if computed.get('assumptions') %}
+<p class="assume-h">Assumed</p>
+<ul class="assume">
+{{ computed.get('assumptions')|list_items }}
+</ul>
+{% endif %}
+</details>
+{% endif %}
+{% if computed.get('not_counted') %}
+<p class="assume-h">Not counted</p>
+<ul class="assume">
+{{ computed.get('not_counted')|list_items }}
+</ul>
+{% endif %}
+{% if group.get('notes') %}
+<ul class="assume">
+{% for note in group.get('notes') %}
+<li>{{ note }}</li>
+{% endfor %}
+</ul>
+{% endif %}
+</div>
+</article>
+{% endfor %}
+"""
+
+
+def _feeder_loop_html(feeders, appendix) -> str:
+    from jinja2 import Environment, StrictUndefined
+
+    from checker.report import html_report
+
+    env = Environment(autoescape=True, undefined=StrictUndefined, trim_blocks=True, lstrip_blocks=True,
+                      keep_trailing_newline=True)
+    env.filters.update(num=html_report.format_number, anchor=html_report.anchor,
+                       status_label=html_report.status_label, list_items=html_report.list_items,
+                       tag_list=html_report.tag_list)
+    return env.from_string(_FEEDER_LOOP).render(feeders=feeders, appendix_ids=appendix)
+
+
+_TEXTS = st.one_of(st.none(), st.text(max_size=8), st.sampled_from(['<b>"x" & \'y\'</b>', "MCC-1", "fuse-td", "-", "0"]),
+                   st.integers(-3, 500), st.floats(allow_nan=False, allow_infinity=False, width=32))
+_NUMBERS = st.one_of(st.none(), st.integers(0, 1000), st.floats(0, 2000, allow_nan=False), st.just("12"))
+_LINES = st.lists(st.one_of(st.text(max_size=6), st.just("a < b & c")), max_size=3)
+_FINDING = st.fixed_dictionaries({}, optional={
+    "status": st.sampled_from(["pass", "fail", "needs-info", "odd<"]), "check": st.sampled_from(["feeder-ocpd", "x&y"]),
+    "rule": _TEXTS, "message": _TEXTS, "citation": _TEXTS, "limit": _NUMBERS, "provided": _NUMBERS, "unit": _TEXTS,
+    "trail": _LINES, "assumptions": _LINES,
+    "cells": st.lists(st.fixed_dictionaries({"label": _TEXTS}), max_size=2)})
+_GROUP = st.fixed_dictionaries({}, optional={
+    "status": st.sampled_from(["pass", "fail", "needs-info", "not-checked", "<x>"]), "group": _TEXTS,
+    "feeder": st.one_of(st.none(), st.fixed_dictionaries({}, optional={
+        "record": st.fixed_dictionaries({}, optional={"name": _TEXTS, "from": _TEXTS}),
+        "source": st.one_of(st.none(), st.fixed_dictionaries({"label": _TEXTS}))})),
+    "motors": st.lists(st.fixed_dictionaries({"tag": _TEXTS}), max_size=3),
+    "computed": st.fixed_dictionaries({}, optional={
+        "min_ampacity_a": _NUMBERS, "ampacity_counted_a": _NUMBERS, "ampacity_rule": _TEXTS,
+        "listed_conductor": _TEXTS, "listed_device": _TEXTS, "device_rule": _TEXTS, "trail": _LINES,
+        "assumptions": _LINES, "not_counted": _LINES,
+        "max_device": st.lists(st.fixed_dictionaries({}, optional={
+            "device": _TEXTS, "limit_a": _NUMBERS, "counted_a": _NUMBERS, "standard_a": _NUMBERS}), max_size=3)}),
+    "findings": st.lists(_FINDING, max_size=2),
+    "notes": _LINES})
+
+
+@settings(max_examples=300, deadline=None)
+@given(st.lists(_GROUP, max_size=3), st.sets(st.sampled_from(["feeder-ocpd", "x&y", "other"])))
+def test_feeder_articles_are_the_template_loop_they_replaced(feeders, appendix):
+    from checker.report import html_report
+
+    assert str(html_report.feeder_articles(feeders, appendix)) == _feeder_loop_html(feeders, appendix)
