@@ -181,3 +181,17 @@ def test_no_second_process_for_a_small_review_or_one_processor(tmp_path, monkeyp
     monkeypatch.setattr(write, "_processors", lambda: 1)
     assert write.MotorParts.start(review.motors, tmp_path / "r.json", tmp_path / "r.html", at_least=1) is None
     assert list(tmp_path.iterdir()) == []
+
+
+@pytest.mark.parametrize("kernel_copy", ["missing", "refused"])
+def test_parts_are_copied_the_same_without_the_kernels_copy(kernel_copy, tmp_path, monkeypatch):
+    """Where os.copy_file_range is missing or refuses (another file system, an old kernel), the
+    parts are copied by reading and writing them, with the same files as the result."""
+    if kernel_copy == "missing":
+        monkeypatch.delattr(os, "copy_file_range", raising=False)
+    else:
+        def refuse(*args, **kwargs):
+            raise OSError(18, "Invalid cross-device link")
+
+        monkeypatch.setattr(os, "copy_file_range", refuse, raising=False)
+    _assert_files_equal_the_renderings(DEMO / "northfield-pump-station.xlsx", tmp_path)

@@ -97,11 +97,16 @@ def _pss_kib(pid: int) -> int:
     return 0
 
 
-def _watch_tree_memory(pid: int, peak: list[float], done: threading.Event) -> None:
-    """Keep in ``peak[0]`` the largest summed PSS (MiB) of the process tree, sampled every 20 ms:
-    a review that forks a second process uses the memory of both."""
-    while not done.wait(0.02):
-        peak[0] = max(peak[0], sum(_pss_kib(p) for p in _tree_pids(pid)) / 1024)
+def _watch_tree_memory(pid: int, alone: int, peak: list[float], done: threading.Event) -> None:
+    """Keep in ``peak[0]`` the largest summed PSS (MiB) of the process tree, sampled every 50 ms
+    while the command has a process of its own (a review that forks a second process uses the
+    memory of both). ``alone``: processes in the tree when it has none (the command's own peak
+    RSS covers that). Reading PSS walks a process's pages: sampling only then keeps this
+    harness off the two processors the review uses."""
+    while not done.wait(0.05):
+        pids = _tree_pids(pid)
+        if len(pids) > alone:
+            peak[0] = max(peak[0], sum(_pss_kib(p) for p in pids) / 1024)
 
 
 def run_process(args: list[str], cwd: Path = ROOT) -> tuple[float, float, int, str]:
@@ -116,7 +121,8 @@ def run_process(args: list[str], cwd: Path = ROOT) -> tuple[float, float, int, s
     start = time.perf_counter()
     proc = subprocess.Popen(wrapped, cwd=cwd, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE)
     peak, done = [0.0], threading.Event()
-    watcher = threading.Thread(target=_watch_tree_memory, args=(proc.pid, peak, done), daemon=True)
+    watcher = threading.Thread(target=_watch_tree_memory, args=(proc.pid, 2 if TIME_BIN else 1, peak, done),
+                               daemon=True)
     watcher.start()
     stderr = proc.stderr.read().decode("utf-8", "replace")
     _, status, usage = os.wait4(proc.pid, 0)
