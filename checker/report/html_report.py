@@ -314,17 +314,19 @@ def _feeder_article(group: dict[str, Any], number: int, appendix: set[str]) -> s
         out.append(f'<details class="fd-work">\n<summary>Working</summary>\n<ol class="trail">\n'
                    f'{list_items(computed.get("trail"))}\n</ol>\n')
         if computed.get("assumptions"):
-            out.append(f'<p class="assume-h">Assumed</p>\n<ul class="assume">\n'
-                       f'{list_items(computed.get("assumptions"))}\n</ul>\n')
+            out.append(_headed_list("Assumed", computed.get("assumptions")))
         out.append("</details>\n")
     if computed.get("not_counted"):
-        out.append(f'<p class="assume-h">Not counted</p>\n<ul class="assume">\n'
-                   f'{list_items(computed.get("not_counted"))}\n</ul>\n')
+        out.append(_headed_list("Not counted", computed.get("not_counted")))
     if group.get("notes"):
         out.append('<ul class="assume">\n' + "".join(f"<li>{_h(note)}</li>\n" for note in group.get("notes"))
                    + "</ul>\n")
     out.append("</div>\n</article>\n")
     return "".join(out)
+
+
+def _headed_list(heading: str, items: Any) -> str:
+    return f'<p class="assume-h">{heading}</p>\n<ul class="assume">\n{list_items(items)}\n</ul>\n'
 
 
 def _feeder_finding_row(finding: dict[str, Any], appendix: set[str]) -> str:
@@ -350,7 +352,6 @@ def _feeder_finding_row(finding: dict[str, Any], appendix: set[str]) -> str:
     if finding.get("trail"):
         out.append(f'<ol class="trail">\n{list_items(finding.get("trail"))}\n</ol>\n')
     if finding.get("assumptions"):
-        out.append(f'<p class="assume-h">Assumed</p>\n<ul class="assume">\n{list_items(finding.get("assumptions"))}\n'
-                   f"</ul>\n")
+        out.append(_headed_list("Assumed", finding.get("assumptions")))
     out.append("</td>\n</tr>\n")
     return "".join(out)
