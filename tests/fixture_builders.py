@@ -13,7 +13,9 @@ from __future__ import annotations
 
 import csv
 import datetime as dt
+import importlib.util
 import io
+import sys
 import zipfile
 from collections.abc import Iterable, Sequence
 from pathlib import Path
@@ -270,3 +272,13 @@ def write_ods_like(path: Path) -> Path:
         archive.writestr("mimetype", "application/vnd.oasis.opendocument.spreadsheet")
         archive.writestr("content.xml", "<office:document-content/>")
     return Path(path)
+
+
+def bench_schedule_csv(tmp_path: Path, motors: int) -> Path:
+    """The benchmark generator's schedule of ``motors`` motors, as CSV in ``tmp_path``."""
+    generator = Path(__file__).resolve().parent / "bench" / "generate.py"
+    spec = importlib.util.spec_from_file_location("bench_generate", generator)
+    generate = importlib.util.module_from_spec(spec)
+    sys.modules[spec.name] = generate
+    spec.loader.exec_module(generate)
+    return generate.write_schedule_csv(tmp_path / "bench.csv", generate.build_schedule(motors))

@@ -13,15 +13,12 @@ All schedules here are invented (the demo, the test fixtures and the benchmark g
 """
 from __future__ import annotations
 
-import importlib.util
 import io
 import json
 import math
-import sys
 from pathlib import Path
 
 import fixture_builders as fb
-import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 from jsonschema import Draft202012Validator
@@ -40,25 +37,6 @@ from checker.rules import registry
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = ROOT / "fixtures" / "demo"
-
-
-def _bench_schedule_csv(tmp_path: Path, motors: int) -> Path:
-    spec = importlib.util.spec_from_file_location("bench_generate", ROOT / "tests" / "bench" / "generate.py")
-    generate = importlib.util.module_from_spec(spec)
-    sys.modules[spec.name] = generate
-    spec.loader.exec_module(generate)
-    return generate.write_schedule_csv(tmp_path / "bench.csv", generate.build_schedule(motors))
-
-
-@pytest.fixture(params=["demo-xlsx", "demo-csv", "messy-xlsx", "bench-csv"])
-def schedule(request, tmp_path) -> Path:
-    if request.param == "demo-xlsx":
-        return DEMO / "northfield-pump-station.xlsx"
-    if request.param == "demo-csv":
-        return DEMO / "northfield-pump-station.csv"
-    if request.param == "messy-xlsx":
-        return fb.write_messy_xlsx(tmp_path / "messy.xlsx")
-    return _bench_schedule_csv(tmp_path, 150)
 
 
 # --------------------------------------------------------------------------- reused check results
@@ -189,31 +167,6 @@ def test_lazy_report_and_streams_equal_the_eager_ones(schedule):
         assert summary_text(lazy, max_lines=lines) == summary_text(eager, max_lines=lines)
 
 
-@pytest.fixture(params=["northfield-chromium.pdf", "e601-motor-schedule.pdf", "hostile-cells", "odd-sheet-name"])
-def more_schedules(request, tmp_path) -> Path:
-    """PDF tables (cells labelled by page and table), cells that must be escaped, and a sheet
-    name with quotes, digits and markup (it is part of every cell label)."""
-    if request.param.endswith(".pdf"):
-        return ROOT / "fixtures" / "pdf" / request.param
-    if request.param == "odd-sheet-name":
-        import openpyxl
-
-        book = openpyxl.Workbook()
-        sheet = book.active
-        sheet.title = 'Pumps "1" & <2>!'
-        for row in (["TAG", "HP", "VOLTS", "FLA", "CONDUCTORS", "OCPD"], ["P-1", 10, 575, 11, "3#12", "25A CB"],
-                    ["P-12", 7.5, 575, 9, "3#14", "20A CB"]):
-            sheet.append(row)
-        book.save(tmp_path / "odd.xlsx")
-        return tmp_path / "odd.xlsx"
-    path = tmp_path / "hostile.csv"
-    path.write_text("TAG,DESCRIPTION,HP,VOLTS,FLA,CONDUCTORS,OCPD,REMARKS\n"
-                    "<script>alert(1)</script>,\"pump & \"\"fan\"\" <b>\",10,575,11,3#12 RW90,25A CB,=1+1\n"
-                    "P-2,'quoted' é ünïcode \u2028 line,7.5,575,9,3#14,20 A TD fuse,\n"
-                    "P-3,no current,5,575,,3#14,,\n", encoding="utf-8")
-    return path
-
-
 def _files_equal_the_renderings(review, tmp_path):
     eager = review_to_dict(review, "t")
     write_reports(review_to_dict(review, "t", lazy=True), tmp_path / "r.json", tmp_path / "r.html")
@@ -246,7 +199,7 @@ def test_json_has_one_motor_per_line():
 
 def test_html_page_is_small_per_motor(tmp_path):
     """Each motor is a few hundred bytes plus its findings' one-line entries."""
-    review = review_schedule(_bench_schedule_csv(tmp_path, 300))
+    review = review_schedule(fb.bench_schedule_csv(tmp_path, 300))
     page = render_html(review_to_dict(review, "t"))
     start, end = page.index('<section id="motors"'), page.index('<section id="findings-in-full"')
     assert (end - start) / len(review.motors) < 2048

@@ -397,7 +397,6 @@ def test_page_from_the_compiled_template_equals_the_page_compiled_now(tmp_path, 
     from jinja2 import FileSystemLoader
 
     from checker.report import html_report
-
     from checker.review import review_schedule
 
     root = Path(__file__).resolve().parents[1]

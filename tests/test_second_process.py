@@ -9,9 +9,9 @@ All schedules here are invented (the demo, the test fixtures and the benchmark g
 from __future__ import annotations
 
 import os
-import sys
 from pathlib import Path
 
+import fixture_builders as fb
 import pytest
 
 from checker import cli
@@ -26,8 +26,6 @@ pytestmark = pytest.mark.skipif(not hasattr(os, "fork"), reason="the second proc
 
 ROOT = Path(__file__).resolve().parents[1]
 DEMO = ROOT / "fixtures" / "demo"
-sys.path.insert(0, str(Path(__file__).resolve().parent))
-from test_fast_paths import _bench_schedule_csv, more_schedules, schedule  # noqa: E402,F401 - shared fixtures
 
 
 @pytest.fixture(autouse=True)
@@ -107,7 +105,7 @@ def _cli(schedule: Path, tmp_path: Path, name: str, capsys) -> tuple[int, bytes,
 
 
 def test_command_line_gives_the_same_reports_with_and_without(tmp_path, capsys, monkeypatch):
-    schedule = _bench_schedule_csv(tmp_path, 300)
+    schedule = fb.bench_schedule_csv(tmp_path, 300)
     used = []
     real_start = write.MotorParts.start.__func__
 

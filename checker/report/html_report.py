@@ -202,8 +202,8 @@ def compiled_page_text(env: Environment) -> str:
 
 
 def _compiled_header(source: str) -> list[str]:
-    return ["motorcheck: templates/review.html.j2 compiled by Jinja; do not edit (to make it anew: python -c "
-            "'from checker.report.html_report import write_compiled_page; write_compiled_page()')",
+    return [("motorcheck: templates/review.html.j2 compiled by Jinja; do not edit (to make it anew: python -c "
+             "'from checker.report.html_report import write_compiled_page; write_compiled_page()')"),
             f"template-sha256: {hashlib.sha256(source.encode('utf-8')).hexdigest()}",
             f"jinja-version: {jinja2.__version__}"]
 
@@ -211,7 +211,7 @@ def _compiled_header(source: str) -> list[str]:
 def page_template(env: Environment) -> Template:
     """The page template: compiled ahead when that compilation is of this template by this
     Jinja (see ``COMPILED_NAME``), else compiled now."""
-    source, filename, _ = env.loader.get_source(env, TEMPLATE_NAME)
+    source, _, _ = env.loader.get_source(env, TEMPLATE_NAME)
     try:
         text = (TEMPLATES_DIR / COMPILED_NAME).read_text(encoding="utf-8")
     except OSError:
@@ -335,8 +335,8 @@ def _feeder_finding_row(finding: dict[str, Any], appendix: set[str]) -> str:
         rule_html = f'<a href="#check-{_h(anchor(check))}">{_h(rule)}</a>'
     else:
         rule_html = _h(rule)
-    out = [f'<tr>\n<td><span class="badge st-{_h(status)}">{_h(status_label(status))}</span></td>\n'
-           f"<td>{rule_html}</td>\n<td>{_h(finding.get('message'))}"]
+    out = [(f'<tr>\n<td><span class="badge st-{_h(status)}">{_h(status_label(status))}</span></td>\n'
+            f"<td>{rule_html}</td>\n<td>{_h(finding.get('message'))}")]
     if finding.get("citation"):
         out.append(f'<span class="cite">{_h(finding.get("citation"))}</span>')
     out.extend(f'<span class="cite">cell <code>{_h(cell.get("label"))}</code></span>'
