@@ -27,7 +27,6 @@ from checker import model
 from checker.report.build import FINDINGS_HERE, MOTORS_HERE, MOTORS_PER_PIECE, MotorDicts, WrittenApart
 from checker.report.files import GatheredWriter, atomic_text_files, write_atomic_together
 from checker.report.html_motors import Catalogue
-from checker.report.html_report import appendix_ids, iter_html
 from checker.report.json_report import OBJECT_SEPARATOR, iter_json
 from checker.report.motor_text import MotorText
 
@@ -41,6 +40,8 @@ def write_reports(report: dict[str, Any], json_path: Path, html_path: Path,
     """Write ``report`` as JSON to ``json_path`` and as HTML to ``html_path``; both files are
     replaced together, or neither is. ``parts``: the motors' text, being written by a second
     process (:meth:`MotorParts.start`, given this report's motors and these paths)."""
+    from checker.report.html_report import appendix_ids, iter_html  # the page template: Jinja, not needed before
+
     motors = report.get("motors")
     if not isinstance(motors, MotorDicts) or not len(motors):
         write_atomic_together([(json_path, iter_json(report)), (html_path, iter_html(report))])
@@ -59,6 +60,8 @@ def write_reports(report: dict[str, Any], json_path: Path, html_path: Path,
             else:
                 if not findings_apart:  # the page's list of distinct findings, numbered as they were written
                     MotorText(motors.shared, catalogue).count(motors.review(i) for i in range(len(motors)))
+                # The rest of each file is made while the second process may still be writing.
+                json_pieces, html_pieces = iter(list(json_pieces)), iter(list(html_pieces))
                 parts.copy_into(json_out, html_out)
             _copy_until_marker(json_pieces, json_out)  # the rest of the JSON
             if _copy_until_marker(html_pieces, html_out) is FINDINGS_HERE:
