@@ -40,7 +40,8 @@ def write_reports(report: dict[str, Any], json_path: Path, html_path: Path,
     """Write ``report`` as JSON to ``json_path`` and as HTML to ``html_path``; both files are
     replaced together, or neither is. ``parts``: the motors' text, being written by a second
     process (:meth:`MotorParts.start`, given this report's motors and these paths)."""
-    from checker.report.html_report import appendix_ids, iter_html  # the page template: Jinja, not needed before
+    # The page template (and Jinja) are loaded only now: a second process is already writing the motors.
+    from checker.report.html_report import appendix_ids, iter_html
 
     motors = report.get("motors")
     if not isinstance(motors, MotorDicts) or not len(motors):
