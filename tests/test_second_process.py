@@ -9,6 +9,7 @@ All schedules here are invented (the demo, the test fixtures and the benchmark g
 from __future__ import annotations
 
 import os
+import sys
 from pathlib import Path
 
 import fixture_builders as fb
@@ -193,3 +194,84 @@ def test_parts_are_copied_the_same_without_the_kernels_copy(kernel_copy, tmp_pat
 
         monkeypatch.setattr(os, "copy_file_range", refuse, raising=False)
     _assert_files_equal_the_renderings(DEMO / "northfield-pump-station.xlsx", tmp_path)
+
+
+# --------------------------------------------------------------------------- stopped from outside
+
+def _children(pid: int) -> list[int]:
+    try:
+        return [int(p) for p in Path(f"/proc/{pid}/task/{pid}/children").read_text().split()]
+    except OSError:
+        return []
+
+
+def _gone(pid: int, seconds: float = 15.0) -> bool:
+    import time
+
+    end = time.monotonic() + seconds
+    while time.monotonic() < end:
+        try:
+            if Path(f"/proc/{pid}/stat").read_text().split(") ")[1].startswith("Z"):
+                return True  # ended, not yet reaped by whoever adopted it
+        except (OSError, IndexError):
+            return True
+        time.sleep(0.05)
+    return False
+
+
+def _start_review_with_a_second_process(tmp_path: Path):
+    """A review running as a command, stopped while its second process writes; None if it ended first."""
+    import subprocess
+    import time
+
+    schedule = fb.bench_schedule_csv(tmp_path, 6000)
+    out = tmp_path / "out"
+    out.mkdir()
+    (out / "r.json").write_text("old json")
+    (out / "r.html").write_text("old html")
+    proc = subprocess.Popen([sys.executable, "-m", "checker", "review", str(schedule), "--json", str(out / "r.json"),
+                             "--html", str(out / "r.html"), "--quiet"], cwd=ROOT, stdout=subprocess.DEVNULL,
+                            stderr=subprocess.PIPE, text=True)
+    end = time.monotonic() + 60
+    while time.monotonic() < end and proc.poll() is None:
+        children = _children(proc.pid)
+        if children:
+            return proc, children[0], out
+        time.sleep(0.005)
+    proc.communicate()
+    return None
+
+
+linux_only = pytest.mark.skipif(not Path("/proc/self/task").exists(), reason="watches processes through /proc")
+
+
+@linux_only
+def test_a_termination_request_cleans_up_and_says_one_line(tmp_path):
+    import signal
+
+    started = _start_review_with_a_second_process(tmp_path)
+    if started is None:
+        pytest.skip("the review ended before its second process could be seen")
+    proc, child, out = started
+    proc.send_signal(signal.SIGTERM)
+    _, err = proc.communicate(timeout=60)
+    assert proc.returncode == cli.EXIT_UNUSABLE
+    assert err == "motorcheck: interrupted; no report was replaced\n"
+    assert _gone(child)
+    assert sorted(p.name for p in out.iterdir()) == ["r.html", "r.json"]  # no .tmp or .part file
+    assert (out / "r.json").read_text() == "old json" and (out / "r.html").read_text() == "old html"
+
+
+@linux_only
+def test_the_second_process_stops_and_removes_its_parts_when_the_first_is_killed(tmp_path):
+    import signal
+
+    started = _start_review_with_a_second_process(tmp_path)
+    if started is None:
+        pytest.skip("the review ended before its second process could be seen")
+    proc, child, out = started
+    proc.send_signal(signal.SIGKILL)
+    proc.communicate(timeout=60)
+    assert _gone(child)
+    assert not [p.name for p in out.iterdir() if p.name.endswith(".part")]
+    assert (out / "r.json").read_text() == "old json" and (out / "r.html").read_text() == "old html"

@@ -19,7 +19,7 @@ import os
 import shutil
 import signal
 import tempfile
-from collections.abc import Iterator, Sequence
+from collections.abc import Callable, Iterator, Sequence
 from pathlib import Path
 from typing import Any
 
@@ -99,8 +99,10 @@ class _Reviews:
         return self.reviews[index]
 
 
-def _write_motors(motors: MotorDicts | _Reviews, writer: MotorText, json_out: Any, html_out: Any) -> None:
-    """Every motor's JSON line and HTML block, written as it is made."""
+def _write_motors(motors: MotorDicts | _Reviews, writer: MotorText, json_out: Any, html_out: Any,
+                  between: Callable[[], None] | None = None) -> None:
+    """Every motor's JSON line and HTML block, written as it is made; ``between`` is called
+    after each piece written."""
     json_pieces: list[str] = []
     html_pieces: list[str] = []
     for index in range(len(motors)):
@@ -111,6 +113,8 @@ def _write_motors(motors: MotorDicts | _Reviews, writer: MotorText, json_out: An
             json_out.write("".join(json_pieces))
             html_out.write("".join(html_pieces))
             json_pieces, html_pieces = [], []
+            if between is not None:
+                between()
     json_out.write("".join(json_pieces))
     html_out.write("".join(html_pieces))
 
@@ -259,14 +263,23 @@ def _write_parts_and_leave(reviews: Sequence[model.MotorReview], names: list[str
                            errors: int) -> None:
     """The second process's whole life: never returns into the caller's code."""
     code = 1
+    parent = os.getppid()
+
+    def stop_if_orphaned() -> None:  # the first process was killed outright: its parts are litter
+        if os.getppid() != parent:
+            for name in names:
+                _remove(name)
+            os._exit(1)
+
     try:
         signal.signal(signal.SIGINT, signal.SIG_IGN)  # the first process answers an interrupt and stops this one
+        signal.signal(signal.SIGTERM, signal.SIG_DFL)
         catalogue = Catalogue(appendix_ids)
         writer = MotorText({}, catalogue)
         with open(names[0], "w", encoding="utf-8", newline="", buffering=1 << 20) as json_file, \
                 open(names[1], "w", encoding="utf-8", newline="", buffering=1 << 20) as html_file:
             json_out, html_out = GatheredWriter(json_file), GatheredWriter(html_file)
-            _write_motors(_Reviews(reviews), writer, json_out, html_out)
+            _write_motors(_Reviews(reviews), writer, json_out, html_out, stop_if_orphaned)
             json_out.flush()
             html_out.flush()
         with open(names[2], "w", encoding="utf-8", newline="") as findings_file:
