@@ -245,14 +245,20 @@ def _start_review_with_a_second_process(tmp_path: Path):
 linux_only = pytest.mark.skipif(not Path("/proc/self/task").exists(), reason="watches processes through /proc")
 
 
-@linux_only
-def test_a_termination_request_cleans_up_and_says_one_line(tmp_path):
-    import signal
-
+@pytest.fixture
+def running_review(tmp_path):
+    """(command process, its second process, output folder) of a review caught while both run."""
     started = _start_review_with_a_second_process(tmp_path)
     if started is None:
         pytest.skip("the review ended before its second process could be seen")
-    proc, child, out = started
+    return started
+
+
+@linux_only
+def test_a_termination_request_cleans_up_and_says_one_line(running_review):
+    import signal
+
+    proc, child, out = running_review
     proc.send_signal(signal.SIGTERM)
     _, err = proc.communicate(timeout=60)
     assert proc.returncode == cli.EXIT_UNUSABLE
@@ -263,13 +269,10 @@ def test_a_termination_request_cleans_up_and_says_one_line(tmp_path):
 
 
 @linux_only
-def test_the_second_process_stops_and_removes_its_parts_when_the_first_is_killed(tmp_path):
+def test_the_second_process_stops_and_removes_its_parts_when_the_first_is_killed(running_review):
     import signal
 
-    started = _start_review_with_a_second_process(tmp_path)
-    if started is None:
-        pytest.skip("the review ended before its second process could be seen")
-    proc, child, out = started
+    proc, child, out = running_review
     proc.send_signal(signal.SIGKILL)
     proc.communicate(timeout=60)
     assert _gone(child)
