@@ -278,3 +278,20 @@ def test_the_second_process_stops_and_removes_its_parts_when_the_first_is_killed
     assert _gone(child)
     assert not [p.name for p in out.iterdir() if p.name.endswith(".part")]
     assert (out / "r.json").read_text() == "old json" and (out / "r.html").read_text() == "old html"
+
+
+def test_a_second_process_stopped_from_outside_reads_as_an_interrupt(tmp_path, monkeypatch):
+    import signal
+
+    def slow_both(self, review, index):
+        import time
+        time.sleep(60)
+
+    monkeypatch.setattr(MotorText, "both", slow_both)
+    review = review_schedule(DEMO / "northfield-pump-station.csv")
+    parts = write.MotorParts.start(review.motors, tmp_path / "r.json", tmp_path / "r.html", at_least=1)
+    os.kill(parts.pid, signal.SIGTERM)
+    with pytest.raises(KeyboardInterrupt):
+        parts.wait()
+    parts.discard()
+    assert list(tmp_path.iterdir()) == []

@@ -127,13 +127,14 @@ def _processors() -> int:
 
 
 class MotorParts:
-    """The motors' JSON lines and HTML blocks, written by a second process into two part files
-    beside the reports, to be copied into them by :func:`write_reports`.
+    """The motors' JSON lines and HTML blocks, and the page's 'Findings in full', written by a
+    second process into part files beside the reports, to be copied into them by
+    :func:`write_reports`.
 
     The second process is a fork: it reads the very reviews this process holds, writes with its
-    own :class:`MotorText` (numbering distinct findings on first sight, as this process numbers
-    them again for the page's list) and leaves. It changes nothing this process sees; a failure
-    there is raised here, as one line, when the parts are copied.
+    own :class:`MotorText` (numbering distinct findings on first sight, as one process writing
+    them all would) and leaves. It changes nothing this process sees; a failure there is raised
+    here, as one line, when the parts are copied.
     """
 
     def __init__(self, pid: int, names: list[str], errors: int, appendix_ids: set[str]) -> None:
@@ -164,8 +165,8 @@ class MotorParts:
             for name in names:
                 _remove(name)
             raise
-        pid = os.fork()
         appendix_ids = {str(check) for check in appendix_ids}
+        pid = os.fork()
         if pid == 0:  # the second process: write, say what went wrong if anything did, leave
             os.close(read_end)
             _write_parts_and_leave(reviews, names, appendix_ids, write_end)
@@ -173,13 +174,17 @@ class MotorParts:
         return cls(pid, names, read_end, appendix_ids)
 
     def wait(self) -> None:
-        """Wait for the second process; raise ``OSError`` with its one-line message if it failed."""
+        """Wait for the second process. If it failed: ``OSError`` (a part file could not be
+        written), ``KeyboardInterrupt`` (it was stopped by a signal) or ``RuntimeError`` (a bug),
+        with its one-line message."""
         if self.status is None:
             _, status = os.waitpid(self.pid, 0)
             self.status = os.waitstatus_to_exitcode(status)
             with os.fdopen(self.errors, "rb") as stream:
                 message = stream.read(2000).decode("utf-8", "replace").strip()
             self.errors = -1
+            if self.status < 0 or message == "interrupted":  # stopped from outside, as by a termination request
+                raise KeyboardInterrupt
             if self.status != 0:
                 kind, *said = message.split("\t")
                 if kind == "os" and len(said) == 3:  # a part file could not be written: said as this process would
@@ -289,6 +294,8 @@ def _write_parts_and_leave(reviews: Sequence[model.MotorReview], names: list[str
         try:
             if isinstance(exc, OSError):
                 text = "\t".join(["os", str(exc.errno or 0), str(exc.strerror or exc), str(exc.filename or "")])
+            elif isinstance(exc, KeyboardInterrupt):  # a termination request before its own handler was set
+                text = "interrupted"
             else:
                 text = f"writing the motors failed: {type(exc).__name__}: {str(exc)[:200]}"
             os.write(errors, text.encode("utf-8", "replace")[:2000])
