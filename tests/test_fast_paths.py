@@ -19,6 +19,7 @@ import math
 from pathlib import Path
 
 import fixture_builders as fb
+import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 from jsonschema import Draft202012Validator
@@ -214,17 +215,10 @@ class _Terminal(io.StringIO):
         return True
 
 
-def test_progress_is_silent_off_a_terminal():
-    stream = io.StringIO()
-    with Progress(stream, delay_s=0) as progress:
-        progress.stage("reading")
-        progress.step(5, 10)
-    assert stream.getvalue() == ""
-
-
-def test_progress_waits_for_its_delay():
-    stream = _Terminal()
-    with Progress(stream, delay_s=60) as progress:
+@pytest.mark.parametrize(("stream", "delay_s"), [(io.StringIO(), 0), (_Terminal(), 60)],
+                         ids=["off a terminal", "before its delay"])
+def test_progress_is_silent(stream, delay_s):
+    with Progress(stream, delay_s=delay_s) as progress:
         progress.stage("reading")
         progress.step(5, 10)
     assert stream.getvalue() == ""

@@ -158,14 +158,20 @@ def test_a_bug_in_the_second_process_is_one_line_and_exit_3(tmp_path, capsys, mo
     assert err.startswith("motorcheck: internal error (RuntimeError: writing the motors failed: ZeroDivisionError")
 
 
-def test_discard_stops_a_running_second_process_and_removes_its_parts(tmp_path, monkeypatch):
+@pytest.fixture
+def stalled_parts(tmp_path, monkeypatch):
+    """A second process that hangs on its first motor, writing into ``tmp_path``."""
     def slow_both(self, review, index):
         import time
         time.sleep(60)
 
     monkeypatch.setattr(MotorText, "both", slow_both)
     review = review_schedule(DEMO / "northfield-pump-station.csv")
-    parts = write.MotorParts.start(review.motors, tmp_path / "r.json", tmp_path / "r.html", at_least=1)
+    return write.MotorParts.start(review.motors, tmp_path / "r.json", tmp_path / "r.html", at_least=1)
+
+
+def test_discard_stops_a_running_second_process_and_removes_its_parts(stalled_parts):
+    parts = stalled_parts
     assert parts is not None and Path(parts.json_part).exists()
     parts.discard()
     assert not Path(parts.json_part).exists() and not Path(parts.html_part).exists()
@@ -280,16 +286,10 @@ def test_the_second_process_stops_and_removes_its_parts_when_the_first_is_killed
     assert (out / "r.json").read_text() == "old json" and (out / "r.html").read_text() == "old html"
 
 
-def test_a_second_process_stopped_from_outside_reads_as_an_interrupt(tmp_path, monkeypatch):
+def test_a_second_process_stopped_from_outside_reads_as_an_interrupt(stalled_parts, tmp_path):
     import signal
 
-    def slow_both(self, review, index):
-        import time
-        time.sleep(60)
-
-    monkeypatch.setattr(MotorText, "both", slow_both)
-    review = review_schedule(DEMO / "northfield-pump-station.csv")
-    parts = write.MotorParts.start(review.motors, tmp_path / "r.json", tmp_path / "r.html", at_least=1)
+    parts = stalled_parts
     os.kill(parts.pid, signal.SIGTERM)
     with pytest.raises(KeyboardInterrupt):
         parts.wait()
