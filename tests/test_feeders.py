@@ -378,3 +378,22 @@ def test_feeder_table_above_the_motor_schedule(tmp_path):
     assert reasons[1] == "feeder schedule title" and reasons[2] == "feeder schedule header row"
     assert reasons[5] != "feeder schedule title" and 3 not in reasons
     assert len(review.motors) + len(review.skipped) + 1 == len(ff.ABOVE_ROWS)
+
+
+def test_a_group_row_over_the_motor_header_is_not_a_feeder_schedule(tmp_path):
+    """'EQUIPMENT | SUPPLY | BRANCH | PROTECTION' over the column headers reads like a feeder header
+    (equipment -> to, supply -> from) but has no rows of its own: it is not listed as a feeder
+    schedule, and the row is accounted for as not reviewed. Invented schedule."""
+    path = tmp_path / "grouped.csv"
+    path.write_text("COLD STORE MOTOR SCHEDULE\n"
+                    "EQUIPMENT,,,SUPPLY,,BRANCH,PROTECTION,REMARKS\n"
+                    "TAG,SERVICE,HP,V/PH/HZ,FLA,CONDUCTORS,OCPD,NOTES\n"
+                    "MCC-1\n"
+                    "EF-1,EVAP FAN,7-1/2,575/3/60,9,3#12 RW90 CU,20A CB,\n"
+                    "EF-2,EVAP FAN,7-1/2,575/3/60,9,3#12 RW90 CU,20A CB,\n", encoding="utf-8")
+    grid = read_grids(path)[0]
+    assert locate_feeder_tables(grid, locate_tables(grid)) == []
+    report = review_to_dict(review_schedule(path), "t")
+    assert [t["status"] for t in report["tables"]] == ["read"]
+    assert report["summary"]["rows_read"] == 6 and report["summary"]["motors"] == 2
+    assert any(s["source"]["row"] == 2 for s in report["skipped"])

@@ -295,10 +295,13 @@ def locate_feeder_tables(grid: Grid, motor_tables: list[LocatedTable] | tuple = 
         blocks.append((_title_rows_above(grid, first, floor), first, last, mapping, texts))
         floor = last + 1
     starts = sorted({b[0] for b in blocks} | {t.header_first for t in motor_tables})
+    motor_starts = {t.header_first for t in motor_tables}
     tables = []
     for title_first, first, last, mapping, texts in blocks:
         stop = next((s for s in starts if s > last), n)
         data_last = max(_last_non_empty(grid, last + 1, stop), last)
+        if data_last == last and last + 1 in motor_starts:
+            continue  # no rows of its own, right over a motor header: that header's group row (EQUIPMENT | SUPPLY ...)
         if stop < n:
             data_last = _without_next_title(grid, last + 1, data_last)
         columns = tuple(Column(c, grid.column_label(c), name, texts[c]) for c, name in sorted(mapping.items()))
