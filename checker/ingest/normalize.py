@@ -267,26 +267,28 @@ def _short(text: str, limit: int = 60) -> str:
     return text if len(text) <= limit else text[: limit - 1] + "…"
 
 
-def classify_row(cells: list[str], mapped: dict[str, str], header_texts: dict[str, str]) -> str | None:
+def classify_row(cells: list[str], mapped: dict[str, str], header_texts: dict[str, str],
+                 repeats: int | None = None) -> str | None:
     """Why a row is not a motor, or None when it is one. ``header_texts`` are the columns' last
-    header level, in lower case."""
+    header level, in lower case; ``repeats``, if known, is ``header_repeats`` for the row."""
     filled = [c for c in cells if c]
     if not filled:
         return "blank row"
     first = filled[0]
+    get = mapped.get
     # 'SPARE' as the tag marks an unused position; a description such as 'Spare sump pump' with motor
     # ratings is an installed standby motor and is reviewed.
-    rated = any(mapped.get(f) for f in ("hp", "kw", "fla"))
-    if _SPARE_RE.match(mapped.get("tag", "")) or (not rated and (
-            _SPARE_RE.match(mapped.get("description", "")) or (len(filled) <= 2 and _SPARE_RE.match(first)))):
+    rated = get("hp") or get("kw") or get("fla")
+    if _SPARE_RE.match(get("tag", "")) or (not rated and (
+            _SPARE_RE.match(get("description", "")) or (len(filled) <= 2 and _SPARE_RE.match(first)))):
         return "spare or space, not a motor"
-    # header_texts are lower case (see normalize_table); a row repeating them is a header, not a motor
-    repeats = sum(1 for f, text in mapped.items() if text and header_texts.get(f, "").endswith(text.lower()))
+    if repeats is None:
+        repeats = header_repeats(mapped, header_texts)
     if repeats >= 3 and repeats * 2 >= sum(1 for t in mapped.values() if t):
         return "repeated header row"
-    if _TOTAL_RE.search(first) or _TOTAL_RE.search(mapped.get("tag", "")):
+    if _TOTAL_RE.search(first) or _TOTAL_RE.search(get("tag", "")):
         return "total row"
-    has_data = any(mapped.get(f) for f in _MOTOR_DATA_FIELDS)
+    has_data = any(map(get, _MOTOR_DATA_FIELDS))
     if _NOTE_RE.match(first) and (not has_data or len(filled) == 1):
         return "note"
     if not has_data:
@@ -294,6 +296,23 @@ def classify_row(cells: list[str], mapped: dict[str, str], header_texts: dict[st
             return "section heading"
         return "no motor data in the row (no hp, kW, FLA, voltage, conductor or device)"
     return None
+
+
+def header_repeats(mapped: dict[str, str], header_texts: dict[str, str]) -> int:
+    """How many of a row's mapped cells repeat their column's header (``header_texts``: lower case)."""
+    return sum(1 for f, text in mapped.items() if text and header_texts.get(f, "").endswith(text.lower()))
+
+
+def _header_repeats_by_row(rows: list[list[str]], columns: dict[str, int], header_texts: dict[str, str]) -> list[int]:
+    """``header_repeats`` of every row, a column at a time (``columns``: field -> the column it is read from)."""
+    counts = [0] * len(rows)
+    for name, index in columns.items():
+        header = header_texts.get(name, "")
+        if not header:
+            continue  # no cell text is a suffix of nothing
+        for row in [r for r, cells in enumerate(rows) if (text := cells[index]) and header.endswith(text.lower())]:
+            counts[row] += 1
+    return counts
 
 
 def _input_finding(message: str, target: str | None) -> Finding:
@@ -326,6 +345,7 @@ class _CellReading(NamedTuple):  # a tuple: made for every distinct text of ever
     values: tuple[tuple[str, Any, bool], ...]
     date: bool = False
     leftovers: tuple[str, ...] = ()
+    flagged: bool = False  # the cell gets a finding: a date, a problem or leftovers
 
 
 @dataclass(frozen=True, slots=True)
@@ -356,8 +376,12 @@ def _column_plans(table: LocatedTable) -> _ColumnPlans:
 
 def _cell_reading(plan: _ColumnPlan, text: str) -> _CellReading:
     col, reader = plan.col, plan.reader
+    if reader.parser is values.parse_text:  # no header hint, date or unit applies to free text
+        plain = values.plain_text(text)
+        if plain is not None:
+            return _CellReading(plain, reader.target, ((reader.target, text, value_valid(reader.target, text)),))
     if col.field in _AMOUNT_FIELDS and _DATE_TEXT.fullmatch(text):
-        return _CellReading(Parsed(), reader.target, (), date=True)
+        return _CellReading(Parsed(), reader.target, (), date=True, flagged=True)
     parsed, target = _read_cell(reader, col, text)
     leftovers: tuple[str, ...] = ()
     if not parsed.problem and parsed.value is not None and col.field in _STRICT_LEFTOVER_FIELDS:
@@ -366,7 +390,7 @@ def _cell_reading(plan: _ColumnPlan, text: str) -> _CellReading:
     if parsed.value is not None:
         given = parsed.value.items() if reader.merge else ((target, parsed.value),)
         pairs = tuple((key, value, value_valid(key, value)) for key, value in given)
-    return _CellReading(parsed, target, pairs, leftovers=leftovers)
+    return _CellReading(parsed, target, pairs, leftovers=leftovers, flagged=bool(parsed.problem or leftovers))
 
 
 def read_motor(table: LocatedTable, row_index: int, section: tuple[str, SourceRef] | None,
@@ -412,7 +436,7 @@ def read_motor(table: LocatedTable, row_index: int, section: tuple[str, SourceRe
             if len(plan.cache) >= _MAX_REMEMBERED:
                 plan.cache.clear()
             reading = plan.cache[text] = _cell_reading(plan, text)
-        if reading.parsed.problem or reading.date or reading.leftovers:
+        if reading.flagged:
             findings.append(_cell_finding(plan, row_source, text, reading))
         if not reading.values:
             continue
@@ -520,13 +544,17 @@ def normalize_table(table: LocatedTable) -> TableResult:
     section: tuple[str, SourceRef] | None = None
     formula_rows = {r for r, _ in grid.formula_cells}
     plans = _column_plans(table)
+    mapped_columns = [(col.field, col.index) for col in table.columns]
+    # A field mapped twice is read from its last column (as the dict below keeps it).
+    repeats = _header_repeats_by_row(grid.rows[table.data_first:table.data_last + 1], dict(mapped_columns),
+                                     header_texts)
     for index in range(table.data_first, table.data_last + 1):
         cells = grid.rows[index]
         row_number = grid.row_numbers[index]
-        if index in formula_rows:
+        if index in formula_rows:  # the stand-in repeats no header: the count above still holds
             cells = [_FORMULA_STAND_IN if (index, i) in grid.formula_cells and not c else c for i, c in enumerate(cells)]
-        mapped = {col.field: cells[col.index] for col in table.columns}
-        reason = classify_row(cells, mapped, header_texts)
+        mapped = {field: cells[column] for field, column in mapped_columns}
+        reason = classify_row(cells, mapped, header_texts, repeats[index - table.data_first])
         cells = grid.rows[index]
         if reason is None:
             result.motors.append(read_motor(table, index, section, plans))

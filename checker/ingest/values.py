@@ -1426,14 +1426,29 @@ def format_device(value: dict[str, Any]) -> str:
 # Free text and hp formatting
 # ---------------------------------------------------------------------------
 
+def _is_plain_text(text: str) -> bool:
+    """Stripped text that ``_prepare`` would leave as it is (most tags and descriptions)."""
+    return text.isascii() and text.isprintable() and "  " not in text and not _is_placeholder(text) \
+        and not _FORMULA_RE.match(text)
+
+
 @_cell_parser("text", max_chars=MAX_TEXT_CHARS)
 def parse_text(text: str) -> Parsed:
     """Tag, description, fed-from or remarks text with internal whitespace collapsed."""
-    if text.isascii() and text.isprintable() and "  " not in text and not _is_placeholder(text) \
-            and not _FORMULA_RE.match(text):
-        # Plain text (most tags and descriptions, each read once): nothing for _prepare to change.
+    if _is_plain_text(text):
         return Parsed(text)
     return _prepared_text(text)
+
+
+def plain_text(text: str) -> Parsed | None:
+    """``parse_text(text)`` for a cell with nothing to clean, else None (then call ``parse_text``).
+
+    A schedule's tags and descriptions are mostly distinct, each read once: this is the short way
+    for them, without the cache and the wrapper's checks that such text passes anyway.
+    """
+    if text and text[0] != " " and text[-1] != " " and len(text) <= MAX_TEXT_CHARS and _is_plain_text(text):
+        return Parsed(text)
+    return None
 
 
 def _prepared_text(text: str) -> Parsed:

@@ -157,13 +157,15 @@ def minimum_ampacity(motors: list[Motor], ruleset: Ruleset, options: ReviewOptio
     assumptions: list[str] = []
     missing: list[str] = []
     duty_assumed: list[str] = []
+    memo = _memo(ruleset, options)
+    basis_of = memo.basis if memo is not None else (lambda record, why: motor_current(record, ruleset, why))
     for motor in motors:
         percent, assumed, problem = _duty_percent(motor.record, params, ruleset, options)
         if problem:
             missing.append(f"{motor.tag}: {problem}")
             continue
         # Duty-cycle percentages may apply to another current (NEC: the nameplate rating).
-        basis = motor_current(motor.record, ruleset, purpose if percent is None else duty_purpose)
+        basis = basis_of(motor.record, purpose if percent is None else duty_purpose)
         if basis.current_a is None:
             missing.append(f"{motor.tag}: {basis.problem}")
             continue
@@ -354,32 +356,51 @@ _ABSENT = object()
 
 
 class _LimitsMemo:
-    """``branch_limits`` for one review's ruleset and options, computed once per distinct reading.
+    """``branch_limits`` (per device column) and ``current_basis`` (per purpose) for one review's
+    ruleset and options, computed once per distinct reading.
 
-    ``branch_limits`` is a pure function of the record fields it reads, so a record that agrees, value
-    for value, on every field read so far takes the same path and gets the same (frozen) result; a
-    facility schedule of 100 000 motors has a few dozen such readings per device column. A call that
-    looks at the whole record ends the memo (every later call is computed directly).
+    Both are pure functions of the record fields they read, so a record that agrees, value for value,
+    on every field read so far takes the same path and gets the same (frozen) result; a facility
+    schedule of 100 000 motors has a few dozen such readings. A call that looks at the whole record
+    ends the memo (every later call is computed directly).
     """
 
     def __init__(self, ruleset: Ruleset, options: ReviewOptions) -> None:
         self.ruleset, self.options = ruleset, options
         self.fields: tuple = ()  # fields read so far, but "ocpd" (its value is set by the column)
         self.found: dict = {}
-        self.parts: dict = {}    # (column, fla missing, id(limits)) -> (limits, _parts(...))
+        self.parts: dict = {}    # (column, number of the reading, fla missing) -> _parts(...)
         self.direct = False
         self.frozen = FrozenValues()
-        self.tails: dict[int, tuple] = {}  # id(record) -> (record, fields, their frozen values)
+        self.readings: dict[tuple, int] = {}  # frozen values of the fields read -> a number for them
+        self.tails: dict[int, tuple] = {}  # id(record) -> (record, fields, number of its reading)
 
-    def _key(self, record: dict, column: str) -> tuple:
-        # A motor is looked up once per candidate device column: its values are frozen once.
+    def _key(self, record: dict, kind: object) -> tuple:
+        # A motor is looked up once per candidate device column: its values are frozen and numbered once.
         known = self.tails.get(id(record))
         if known is None or known[0] is not record or known[1] is not self.fields:
-            tail = tuple([self.frozen(record.get(field, _ABSENT)) for field in self.fields])
-            self.tails[id(record)] = (record, self.fields, tail)
+            frozen = self.frozen
+            tail = tuple([frozen(record.get(field, _ABSENT)) for field in self.fields])
+            number = self.readings.setdefault(tail, len(self.readings))
+            self.tails[id(record)] = (record, self.fields, number)
         else:
-            tail = known[2]
-        return column, tail
+            number = known[2]
+        return kind, number
+
+    def parts_of(self, record: dict, column: str, fla_missing: bool) -> tuple:
+        """``_parts`` of the record's branch limits under ``column``, worked out once per reading."""
+        fields = self.fields
+        try:
+            key = None if self.direct else (*self._key(record, column), fla_missing)
+            hit = None if key is None else self.parts.get(key)
+        except TypeError:  # an unhashable value: work it out directly
+            key = hit = None
+        if hit is not None:
+            return hit
+        found = _parts(self(record, column), column, fla_missing)
+        if key is not None and not self.direct and self.fields is fields:  # keyed by the fields still read
+            self.parts[key] = found
+        return found
 
     def __call__(self, motor_record: dict, column: str) -> BranchLimits:
         if self.direct:
@@ -393,17 +414,40 @@ class _LimitsMemo:
             return hit
         log = ReadLog(_with_device(motor_record, column))
         result = branch_limits(log, self.ruleset, self.options)
+        self._remember(log, log.read - {"ocpd"}, motor_record, column, key, result)  # "ocpd" is the column's
+        return result
+
+    def basis(self, record: dict, purpose: str) -> CurrentBasis:
+        """``current_basis`` of the record for ``purpose``, worked out once per reading."""
+        if self.direct:
+            return current_basis(record, self.ruleset, purpose)
+        kind = ("basis", purpose)  # never equal to a column name
+        try:
+            key = self._key(record, kind)
+            hit = self.found.get(key)
+        except TypeError:
+            key = hit = None
+        if hit is not None:
+            return hit
+        log = ReadLog(record)
+        result = current_basis(log, self.ruleset, purpose)
+        self._remember(log, log.read, record, kind, key, result)
+        return result
+
+    def _remember(self, log: ReadLog, read: set, record: dict, kind: object, key: tuple | None,
+                  result: object) -> None:
+        """Keep ``result`` under the record's reading (the fields every look-up reads grow by ``read``)."""
         if log.whole or log.written:
             self.direct = True
         if self.direct or key is None:
-            return result
-        read = log.read - {"ocpd"}
+            return
         if not read <= set(self.fields):
             self.fields = tuple(sorted(set(self.fields) | read, key=str))
             self.found.clear()
-            key = self._key(motor_record, column)
+            self.readings.clear()
+            self.parts.clear()
+            key = self._key(record, kind)
         self.found[key] = result
-        return result
 
 
 def _with_device(record: dict, column: str) -> dict:
@@ -459,11 +503,7 @@ def branch_value(motor: Motor, column: str, ruleset: Ruleset, options: ReviewOpt
     if memo is None:
         parts = _parts(branch_limits(_with_device(motor.record, column), ruleset, options), column, fla_missing)
     else:  # a few dozen distinct readings in a facility schedule: worked out once each
-        limits = memo(motor.record, column)
-        known = memo.parts.get((column, fla_missing, id(limits)))
-        if known is None or known[0] is not limits:
-            known = memo.parts[(column, fla_missing, id(limits))] = (limits, _parts(limits, column, fla_missing))
-        parts = known[1]
+        parts = memo.parts_of(motor.record, column, fla_missing)
     current_a, value_a, problem, assumptions, flc_note, uncertain, line, row = parts
     if current_a is None:
         return BranchValue(None, None, "", (), problem)
@@ -493,19 +533,26 @@ def maximum_device(motors: list[Motor], device: str | None, ruleset: Ruleset,
     memo = _memo(ruleset, options)
     for column in columns:
         ratings = standard_ratings(ruleset, params, column)
-        values = [(motor, branch_value(motor, column, ruleset, options, memo)) for motor in motors]
-        known = [(m, v) for m, v in values if v.value_a is not None]
-        counted = [(m, v) for m, v in values if v.current_a is not None]
-        missing = tuple(f"{m.tag}: {v.problem}" for m, v in values if v.problem)
-        for _, value in values:
-            assumptions.update(dict.fromkeys(value.assumptions))
+        known: list[tuple[Motor, BranchValue]] = []    # with a branch value
+        counted: list[tuple[Motor, BranchValue]] = []  # with a current (a branch value or not)
+        problems: list[str] = []
+        by_row: dict[str, list[str]] = {}  # each row's motors in one line, rows in order of first use
+        for motor in motors:  # one pass: a group may hold thousands of motors
+            value = branch_value(motor, column, ruleset, options, memo)
+            if value.problem:
+                problems.append(f"{motor.tag}: {value.problem}")
+            if value.assumptions:
+                assumptions.update(dict.fromkeys(value.assumptions))
+            if value.current_a is not None:
+                counted.append((motor, value))
+                if value.value_a is not None:
+                    known.append((motor, value))
+                    by_row.setdefault(value.row, []).append(value.line)
+        missing = tuple(problems)
         table = ruleset.table(ruleset.check(BRANCH_CHECK).params["max_percent_table"]) \
             if BRANCH_CHECK in ruleset.checks else None
         trail = [f"Branch values, {DEVICE_NAMES[column]} column"
                  + (f" of {table.citation}:" if table is not None else ":")]
-        by_row: dict[str, list[str]] = {}  # each row's motors in one line, rows in order of first use
-        for _, value in known:
-            by_row.setdefault(value.row, []).append(value.line)
         trail.extend(f"{row.capitalize()} row: {'; '.join(lines)}" for row, lines in by_row.items())
         if not known:
             limits.append(DeviceLimit(column, None, None, None, None, tuple(trail), missing))
