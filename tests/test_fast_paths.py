@@ -64,6 +64,22 @@ def _memo_with(monkeypatch, function) -> _CheckMemo:
     return _CheckMemo(ruleset=None, options=None)
 
 
+@pytest.mark.parametrize("code", ["cec-2015", "nec-2023"])
+def test_feeder_groups_worked_out_once_per_reading_equal_the_direct_way(schedule, code):
+    """``review_feeders`` works out branch limits and table currents once per distinct reading of a
+    motor (``feeders._LimitsMemo``); outside it every motor is worked out on its own. Same groups."""
+    from checker.rules import feeders
+    from checker.rules.common import ReviewOptions
+
+    kept = {}
+    review_schedule(schedule, code=code, motors_checked=lambda motors, ruleset: kept.update(m=motors, r=ruleset))
+    motors, ruleset, options = [m.motor for m in kept["m"]], kept["r"], ReviewOptions()
+    memoised = feeders.review_feeders(motors, [], ruleset, options, review_module.GROUP_CHECKS)
+    assert feeders._LIMITS_MEMO.get() is None  # so the call below works every motor out directly
+    direct = feeders._review_groups(motors, [], ruleset, options, review_module.GROUP_CHECKS)
+    assert memoised == direct and len(direct) > 0
+
+
 def test_equal_values_share_one_run(monkeypatch):
     calls = []
 

@@ -92,3 +92,17 @@ def test_rows_with_the_same_conductor_text_keep_their_own_bond_and_raceway(tmp_p
     for tag in ("P-1", "P-3"):
         assert "bond_size" not in conductors[tag] and "raceway" not in conductors[tag]
     assert conductors["P-1"] == conductors["P-3"]
+
+
+def test_repeated_header_counts_a_column_at_a_time_as_row_by_row():
+    """The table's count of header-repeating cells per row (worked out a column at a time) is the
+    row-by-row count, with a field mapped twice read from its last column as the row's dict keeps it."""
+    from checker.ingest.normalize import _header_repeats_by_row, header_repeats
+
+    header_texts = {"tag": "tag", "hp": "hp", "fla": "full load amps", "volts": "volts"}
+    columns = [("tag", 0), ("hp", 1), ("fla", 2), ("volts", 3), ("hp", 4)]
+    rows = [["TAG", "HP", "AMPS", "VOLTS", "hp"], ["P-1", "5", "7.6", "575", ""], ["tag", "", "load amps", "Volts", "HP"],
+            ["", "", "", "", ""], ["Tag", "hp", "", "", "7.5"], ["g", "p", "s", "s", "p"]]
+    by_row = [header_repeats({f: cells[i] for f, i in columns}, header_texts) for cells in rows]
+    assert _header_repeats_by_row(rows, dict(columns), header_texts) == by_row
+    assert by_row == [4, 0, 4, 0, 1, 4]

@@ -220,3 +220,21 @@ def test_plain_text_short_way_equals_the_long_way(text):
     """``parse_text`` skips the clean-up steps for plain ASCII text; the result is what they give."""
     stripped = text.strip()
     assert values.parse_text(text) == values._prepared_text(stripped)
+
+
+@settings(max_examples=400, deadline=None)
+@given(st.one_of(st.text(max_size=40),
+                 st.text(alphabet=st.characters(min_codepoint=32, max_codepoint=126), max_size=40),
+                 st.sampled_from(["TBD", "n/a", "--", "=SUM(A1:A3)", "=B2", "P-1  A", " x ", "P-1 ", "\tP-1", ""])))
+def test_plain_text_without_the_wrapper_is_parse_text(text):
+    """``plain_text`` (the row loop's way for distinct tags) answers only where ``parse_text`` gives the
+    same, and leaves the rest (padding, placeholders, formulas, other characters) to it."""
+    plain = values.plain_text(text)
+    if plain is not None:
+        assert plain == values.parse_text(text)
+        assert plain.value == text
+
+
+@pytest.mark.parametrize("text", ["P-101", "Raw water pump No. 2", "MCC-1 / 3A", "AHU-3 supply fan (VFD)"])
+def test_plain_text_answers_for_ordinary_tags_and_descriptions(text):
+    assert values.plain_text(text) == values.parse_text(text) == Parsed(text)
