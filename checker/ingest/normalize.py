@@ -202,34 +202,36 @@ def value_valid(name: str, value: Any) -> bool:
 
 class FrozenValues:
     """Hashable stand-ins of record values, like ``frozen_value``, but each container (dict, list)
-    stands in as a number: the same number for equal containers, never reused for another.
+    stands in as one plain object: the same object for equal containers, equal to nothing else.
 
     Rows with the same cell text share one value object (each distinct text is read once per
     table and the value handed out is never changed afterwards), so a review freezes most
-    containers once, by identity, and its memo keys hash a few numbers instead of nested tuples.
-    Use one instance per review, on records nothing changes while it lives.
+    containers once, by identity, and its memo keys hash a few objects instead of nested tuples.
+    Text, floats, None and bare objects (a caller's marker for a missing field) stand for
+    themselves: none of them equals another's stand-in (ints and bools are kept apart from floats
+    by their class). Use one instance per review, on records nothing changes while it lives.
     """
 
     def __init__(self) -> None:
-        self._known: dict[int, tuple[Any, int]] = {}  # id(container) -> (container, number)
-        self._numbers: dict[Any, int] = {}             # frozen_value(container) -> number
+        self._known: dict[int, tuple[Any, object]] = {}  # id(container) -> (container, stand-in)
+        self._stand_ins: dict[Any, object] = {}          # frozen_value(container) -> stand-in
 
     def __call__(self, value: Any) -> Any:
         cls = value.__class__
-        if cls is str or value is None:
+        if cls is str or cls is float or value is None or cls is object:  # a bare object: a caller's marker
             return value
         if cls is dict or cls is list or cls is tuple:
             known = self._known.get(id(value))
             if known is not None and known[0] is value:  # the object is held, so its id is not reused
                 return known[1]
             frozen = frozen_value(value)
-            number = self._numbers.get(frozen)
-            if number is None:
-                number = self._numbers[frozen] = len(self._numbers)  # only ever grows: never reused
+            stand_in = self._stand_ins.get(frozen)
+            if stand_in is None:
+                stand_in = self._stand_ins[frozen] = object()  # equal only to itself
             if len(self._known) >= _MAX_REMEMBERED:
                 self._known.clear()
-            self._known[id(value)] = (value, number)
-            return number
+            self._known[id(value)] = (value, stand_in)
+            return stand_in
         return cls, value
 
 
@@ -308,10 +310,13 @@ def _header_repeats_by_row(rows: list[list[str]], columns: dict[str, int], heade
     counts = [0] * len(rows)
     for name, index in columns.items():
         header = header_texts.get(name, "")
-        if not header:
-            continue  # no cell text is a suffix of nothing
-        for row in [r for r, cells in enumerate(rows) if (text := cells[index]) and header.endswith(text.lower())]:
-            counts[row] += 1
+        texts = [cells[index] for cells in rows]
+        # Each distinct text once; most columns have none that ends the header (no row to visit).
+        repeating = {t for t in set(texts) if t and header.endswith(t.lower())}
+        if repeating:
+            for row, text in enumerate(texts):
+                if text in repeating:
+                    counts[row] += 1
     return counts
 
 
