@@ -90,6 +90,60 @@ def test_schema_is_valid_draft_2020_12():
     assert schema["$schema"].endswith("2020-12/schema")
 
 
+# --- bundled rulesets validated once, by the tests ---------------------------------------------------------
+
+def test_schema_checked_record_names_exactly_the_bundled_rulesets_and_schema():
+    """``rulesets/schema-checked.json`` lets a review skip re-validating an unchanged bundled ruleset.
+    It must list exactly the bundled files as they are now, each of which validates; after changing
+    a ruleset or the schema run ``python -c 'from checker.rules.ruleset import write_schema_checked;
+    write_schema_checked()'``."""
+    from checker.rules import ruleset as module
+
+    record = json.loads((module.repo_root() / "rulesets" / module.SCHEMA_CHECKED_FILE).read_text(encoding="utf-8"))
+    bundled = sorted((module.repo_root() / "rulesets").glob("*.toml"))
+    validator = Draft202012Validator(json.loads((schemas_dir() / "ruleset.schema.json").read_text(encoding="utf-8")))
+    for path in bundled:
+        assert validator.is_valid(tomllib.loads(path.read_text(encoding="utf-8"))), path
+    assert record == {"schema_sha256": module._sha256_of(schemas_dir() / "ruleset.schema.json"),
+                      "rulesets_sha256": [module._sha256_of(path) for path in bundled]}
+
+
+def _count_validations(monkeypatch):
+    from checker.rules import ruleset as module
+
+    calls = []
+    real = module._validate_schema
+    monkeypatch.setattr(module, "_validate_schema", lambda *a, **k: (calls.append(a[0]), real(*a, **k)))
+    return calls
+
+
+def test_unchanged_bundled_bytes_are_not_validated_again_anywhere(tmp_path, monkeypatch, cec_text):
+    calls = _count_validations(monkeypatch)
+    copy = tmp_path / "copy.toml"
+    shutil.copyfile(CEC_PATH, copy)  # the same bytes: the record vouches for them wherever they are
+    load_ruleset(copy)
+    assert calls == []
+    edited = tmp_path / "edited.toml"
+    edited.write_text(cec_text + "\n# a reviewer's note\n", encoding="utf-8")  # one byte more: validated
+    load_ruleset(edited)
+    assert calls == [edited.resolve()]
+
+
+def test_a_changed_schema_revalidates_the_bundled_rulesets(tmp_path, monkeypatch):
+    from checker.rules import ruleset as module
+
+    calls = _count_validations(monkeypatch)
+    changed = tmp_path / "schemas"
+    shutil.copytree(schemas_dir(), changed)
+    with open(changed / "ruleset.schema.json", "a", encoding="utf-8") as schema:
+        schema.write("\n")
+    monkeypatch.setattr(module, "schemas_dir", lambda: changed)
+    copy = tmp_path / "copy.toml"
+    shutil.copyfile(CEC_PATH, copy)
+    load_ruleset(copy)
+    assert calls == [copy.resolve()]
+
+
 # --- rejection of bad files --------------------------------------------------------------------------------
 
 EXTRA_CHECK = """

@@ -366,9 +366,11 @@ class _ColumnPlan:
 
 
 class _ColumnPlans(list):
-    """The table's column plans, and the column of a separate device type ("FUSE" / "CB"), if any."""
+    """The table's column plans, the column of a separate device type ("FUSE" / "CB"), if any, and
+    whether the table has separate bond or raceway columns."""
 
     device_type_index: int | None = None
+    conductor_extras: bool = True
 
 
 def _column_plans(table: LocatedTable) -> _ColumnPlans:
@@ -376,6 +378,7 @@ def _column_plans(table: LocatedTable) -> _ColumnPlans:
                                      None if col.field in ("bond", "raceway") else FIELD_READERS.get(col.field), {})
                          for col in table.columns)
     plans.device_type_index = next((col.index for col in table.columns if col.field == "ocpd_type"), None)
+    plans.conductor_extras = any(col.field in ("bond", "raceway") for col in table.columns)
     return plans
 
 
@@ -453,7 +456,7 @@ def read_motor(table: LocatedTable, row_index: int, section: tuple[str, SourceRe
             (key, value, ok), = reading.values
             record[key], columns[key], valid[key] = value, plan.letter, ok
     sources = CellSources(row_source, columns)
-    if _attach_conductor_extras(table, cells, row_source, record, findings):
+    if plans.conductor_extras and _attach_conductor_extras(table, cells, row_source, record, findings):
         valid.pop("conductor", None)  # amended from other columns: validated as it now is
     if "fed_from" not in record and section is not None:
         record["fed_from"], columns["fed_from"] = section

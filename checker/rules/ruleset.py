@@ -271,8 +271,9 @@ def _load_file(path: pathlib.Path) -> Ruleset:
         raise RulesetError(f"{path}: not UTF-8 text") from None
     except tomllib.TOMLDecodeError as exc:
         raise RulesetError(f"{path}: not valid TOML: {_one_line(str(exc))}") from None
-    _validate_schema(path, doc)
     sha256 = hashlib.sha256(raw).hexdigest()
+    if not _schema_checked_already(sha256):
+        _validate_schema(path, doc)
     if "extends" not in doc:
         _cross_check(path, doc)
         return _build(path, doc, sha256)
@@ -454,6 +455,40 @@ def _validator() -> Draft202012Validator:
     except (OSError, ValueError) as exc:
         raise RulesetError(f"{schema_path}: unusable ruleset schema: {_one_line(str(exc))}") from None
     return Draft202012Validator(schema)
+
+
+SCHEMA_CHECKED_FILE = "schema-checked.json"  # in <repo>/rulesets: the bundled rulesets the tests validated
+
+
+def _sha256_of(path: pathlib.Path) -> str:
+    return hashlib.sha256(path.read_bytes()).hexdigest()
+
+
+def _schema_checked_already(ruleset_sha256: str) -> bool:
+    """Whether a file with exactly these bytes was validated against exactly the present ruleset
+    schema by the tests (``rulesets/schema-checked.json``, written by :func:`write_schema_checked`):
+    the bundled rulesets, unchanged. Validating one costs ~0.04 s of every review; any other or
+    edited file, or a changed schema, is validated as always."""
+    try:
+        checked = json.loads((repo_root() / "rulesets" / SCHEMA_CHECKED_FILE).read_text(encoding="utf-8"))
+        return ruleset_sha256 in checked["rulesets_sha256"] and \
+            checked["schema_sha256"] == _sha256_of(schemas_dir() / "ruleset.schema.json")
+    except (OSError, ValueError, KeyError, TypeError):
+        return False
+
+
+def write_schema_checked() -> pathlib.Path:
+    """Validate every bundled ruleset (``<repo>/rulesets/*.toml``) against the ruleset schema and
+    record their SHA-256 with the schema's (run after changing either; a test fails until then)."""
+    directory = repo_root() / "rulesets"
+    digests = []
+    for path in sorted(directory.glob("*.toml")):
+        _validate_schema(path, tomllib.loads(path.read_text(encoding="utf-8")))  # raises if invalid
+        digests.append(_sha256_of(path))
+    target = directory / SCHEMA_CHECKED_FILE
+    target.write_text(json.dumps({"schema_sha256": _sha256_of(schemas_dir() / "ruleset.schema.json"),
+                                  "rulesets_sha256": digests}, indent=2) + "\n", encoding="utf-8")
+    return target
 
 
 def _validate_schema(path: pathlib.Path, doc: dict, stage: str = "") -> None:
