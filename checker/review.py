@@ -10,6 +10,7 @@ from __future__ import annotations
 import hashlib
 from collections import defaultdict
 from collections.abc import Callable
+from itertools import repeat
 from operator import itemgetter
 from pathlib import Path
 
@@ -76,6 +77,7 @@ class _Frozen(dict):
 
 
 _MISSING = object()
+_MAX_BY_OBJECT = 4096  # value-object look-ups kept per plan (each holds its values)
 
 
 def _key_getter(fields: tuple) -> Callable[[dict], object]:
@@ -105,18 +107,20 @@ class _CheckMemo:
         # an earlier one on all those fields gets that motor's results at one look-up. Any change of
         # what a check reads (or a check run directly) moves ``version`` on and forgets them.
         self.version = 0
-        self.wholes: dict[tuple, tuple] = {}  # check ids -> (version, fields, results by frozen values)
+        # check ids -> (version, fields, results by frozen values, (values, results) by the values' ids)
+        self.wholes: dict[tuple, tuple] = {}
 
     def _whole(self, check_ids: tuple) -> tuple | None:
-        """(fields, results by their frozen values) for motors checked by ``check_ids``, or None."""
+        """(fields, results by their frozen values, by the value objects) for motors checked by
+        ``check_ids``, or None."""
         plan = self.wholes.get(check_ids)
         if plan is not None and plan[0] == self.version:
-            return plan[1], plan[2]
+            return plan[1:]
         if self.all_direct or any(cid not in self.keys or cid in self.direct for cid in check_ids):
             return None
         fields = tuple(sorted({field for cid in check_ids for field in self.fields[cid]}, key=str))
-        self.wholes[check_ids] = (self.version, fields, {})
-        return fields, self.wholes[check_ids][2]
+        self.wholes[check_ids] = (self.version, fields, {}, {})
+        return self.wholes[check_ids][1:]
 
     def run(self, motor: Motor, check_ids: list[str]) -> tuple:
         record = motor.record
@@ -124,19 +128,28 @@ class _CheckMemo:
         whole = self._whole(ids)
         if whole is None:
             return self._run(motor, check_ids)
-        fields, results = whole
+        fields, results, by_object = whole
+        # Rows with the same cell texts hold the very same value objects (normalize reads each distinct
+        # text once): most motors are found by the objects' identities, without freezing a value.
+        values = tuple(map(record.get, fields, repeat(_MISSING)))
+        identities = tuple(map(id, values))
+        known = by_object.get(identities)
+        if known is not None:
+            return known[1]
         frozen = self.frozen
         try:
-            key = tuple([frozen(record.get(field, _MISSING)) for field in fields])
+            key = tuple([frozen(value) for value in values])
             hit = results.get(key)
         except TypeError:  # a value that cannot be hashed
             return self._run(motor, check_ids)
-        if hit is not None:
-            return hit
-        version = self.version
-        hit = self._run(motor, check_ids)
-        if self.version == version:  # nothing read anew: the same fields decide it for every motor
-            results[key] = hit
+        if hit is None:
+            version = self.version
+            hit = self._run(motor, check_ids)
+            if self.version != version:  # a field read anew: the plan is gone
+                return hit
+            results[key] = hit  # nothing read anew: the same fields decide it for every motor
+        if len(by_object) < _MAX_BY_OBJECT:
+            by_object[identities] = (values, hit)  # the values are held, so their ids are not reused
         return hit
 
     def _run(self, motor: Motor, check_ids: list[str]) -> tuple:

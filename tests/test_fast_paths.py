@@ -117,6 +117,29 @@ def test_whole_motor_reuse_follows_what_the_checks_read(monkeypatch):
     assert calls == [5.0, 20.0, 20.0, 5.0]  # A, C, D and F
 
 
+def test_motors_holding_the_same_value_objects_are_found_by_identity(monkeypatch):
+    """Rows with the same cell texts hold the very same value objects; such a motor is found by the
+    objects' identities. Equal values in other objects are found by value, and the objects looked up
+    by identity are held by the memo, so an id is never taken for another object's."""
+    calls = []
+
+    def probe(motor, ruleset, options):  # reads one record field, nothing else
+        calls.append(motor.record["conductor"]["size"])
+        return [Finding("probe", "r", Status.PASS, str(motor.record["conductor"]["size"]))]
+
+    memo = _memo_with(monkeypatch, probe)
+    shared = {"size": "12", "sets": 1}
+    first = memo.run(_motor("A", conductor=shared), ["probe"])  # learns what the check reads
+    second = memo.run(_motor("B", conductor=shared), ["probe"])
+    by_object = next(iter(memo.wholes.values()))[3]
+    assert [values for values, _ in by_object.values()] == [(shared,)]  # held while it is a key
+    again = memo.run(_motor("C", conductor=shared), ["probe"])
+    equal = memo.run(_motor("D", conductor={"size": "12", "sets": 1}), ["probe"])
+    other = memo.run(_motor("E", conductor={"size": "10", "sets": 1}), ["probe"])
+    assert calls == ["12", "10"] and second == first and again is second and equal is second
+    assert other[0].message == "10" and len(by_object) == 3
+
+
 def test_a_check_reading_the_tag_is_run_for_every_motor(monkeypatch):
     memo = _memo_with(monkeypatch, lambda motor, r, o: [Finding("probe", "r", Status.PASS, motor.tag)])
     messages = [memo.run(_motor(tag, hp=5.0), ["probe"])[0].message for tag in ("A", "B", "C")]

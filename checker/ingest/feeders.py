@@ -212,8 +212,7 @@ def _map_columns(texts: dict[int, str]) -> tuple[dict[int, str], float, bool]:
 
 
 def _headerish_row(cells: list[str]) -> bool:
-    filled = [c for c in cells if c]
-    return bool(filled) and not any(is_value_like(c) for c in filled)
+    return any(cells) and not any(map(is_value_like, filter(None, cells)))
 
 
 def _title_rows_above(grid: Grid, header_first: int, floor: int) -> int:

@@ -233,7 +233,7 @@ def _is_units_text(text: str) -> bool:
 
 
 def _row_can_be_header(cells: list[str]) -> bool:
-    return any(cells) and not any(is_value_like(c) for c in cells if c)
+    return any(cells) and not any(map(is_value_like, filter(None, cells)))
 
 
 def _leaf_row_ok(cells: list[str], alone: bool) -> bool:

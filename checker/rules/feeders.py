@@ -35,6 +35,7 @@ from __future__ import annotations
 from collections.abc import Callable, Mapping
 from contextvars import ContextVar
 from dataclasses import dataclass
+from itertools import repeat
 from typing import NamedTuple
 
 from checker.ingest.feeders import FeederRow, group_key
@@ -353,6 +354,7 @@ class BranchValue(NamedTuple):  # a tuple: made once per motor per device column
 
 
 _ABSENT = object()
+_MAX_BY_OBJECT = 4096  # value-object look-ups kept (each holds its values)
 
 
 class _LimitsMemo:
@@ -373,15 +375,23 @@ class _LimitsMemo:
         self.direct = False
         self.frozen = FrozenValues()
         self.readings: dict[tuple, int] = {}  # frozen values of the fields read -> a number for them
+        self.by_object: dict[tuple, tuple] = {}  # the values' ids -> (the values, their number)
         self.tails: dict[int, tuple] = {}  # id(record) -> (record, fields, number of its reading)
 
     def _key(self, record: dict, kind: object) -> tuple:
         # A motor is looked up once per candidate device column: its values are frozen and numbered once.
         known = self.tails.get(id(record))
         if known is None or known[0] is not record or known[1] is not self.fields:
-            frozen = self.frozen
-            tail = tuple([frozen(record.get(field, _ABSENT)) for field in self.fields])
-            number = self.readings.setdefault(tail, len(self.readings))
+            values = tuple(map(record.get, self.fields, repeat(_ABSENT)))
+            identities = tuple(map(id, values))  # rows with the same cell texts share the value objects
+            seen = self.by_object.get(identities)
+            if seen is not None:
+                number = seen[1]
+            else:
+                frozen = self.frozen
+                number = self.readings.setdefault(tuple([frozen(value) for value in values]), len(self.readings))
+                if len(self.by_object) < _MAX_BY_OBJECT:
+                    self.by_object[identities] = (values, number)  # the values held: their ids stay theirs
             self.tails[id(record)] = (record, self.fields, number)
         else:
             number = known[2]
@@ -445,6 +455,7 @@ class _LimitsMemo:
             self.fields = tuple(sorted(set(self.fields) | read, key=str))
             self.found.clear()
             self.readings.clear()
+            self.by_object.clear()
             self.parts.clear()
             key = self._key(record, kind)
         self.found[key] = result
