@@ -150,7 +150,7 @@ _field_validity: dict[tuple, bool] = {}
 
 
 @lru_cache(maxsize=1)
-def _field_validator() -> tuple[Draft202012Validator, tuple[str, ...], frozenset[str]] | None:
+def _field_validator() -> tuple[Draft202012Validator, frozenset[str], frozenset[str]] | None:
     """(validator of one-field records, required fields, fields whose text is judged by its length
     alone), or None when the schema's top level does not split into per-field checks."""
     schema = json.loads(SCHEMA_PATH.read_text(encoding="utf-8"))
@@ -159,7 +159,7 @@ def _field_validator() -> tuple[Draft202012Validator, tuple[str, ...], frozenset
     by_length = frozenset(name for name, sub in schema.get("properties", {}).items()
                           if isinstance(sub, dict) and sub.get("type") == "string" and set(sub) <= _LENGTH_ONLY_KEYWORDS)
     one_field = Draft202012Validator({k: v for k, v in schema.items() if k != "required"})
-    return one_field, tuple(schema.get("required", ())), by_length
+    return one_field, frozenset(schema.get("required", ())), by_length
 
 
 def frozen_value(value: Any) -> Any:
@@ -245,9 +245,11 @@ def record_valid(record: dict, known: dict[str, bool] | None = None) -> bool | N
     if split is None:
         return None
     _, required, _ = split
-    if any(name not in record for name in required):
+    if not record.keys() >= required:
         return False
     known = known or {}
+    if all(map(known.get, record)):  # every field already judged, and valid (the usual row)
+        return True
     for name, value in record.items():
         valid = known.get(name)
         if valid is None:
