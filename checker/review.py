@@ -311,11 +311,11 @@ def _read_grid(grid: Grid, tables: list[LocatedTable], motors: list, skipped: li
 
 
 def _duplicate_tag_notes(motors: list[MotorReview]) -> list[str]:
-    seen: dict[str, list[str]] = defaultdict(list)
+    seen: dict[str, list] = defaultdict(list)
     for review in motors:
-        seen[review.motor.tag.strip().upper()].append(review.motor.source.label())
-    return [f"Tag {tag} appears more than once ({', '.join(where)}); each row was reviewed separately."
-            for tag, where in seen.items() if len(where) > 1]
+        seen[review.motor.tag.strip().upper()].append(review.motor.source)
+    return [f"Tag {tag} appears more than once ({', '.join(s.label() for s in where)}); each row was reviewed "
+            f"separately." for tag, where in seen.items() if len(where) > 1]
 
 
 def _rows_text(table: dict) -> str:

@@ -84,6 +84,27 @@ def test_group_key_strips_buckets_voltages_and_panel_words(text, key, label):
     assert group_key(text) == (key, label)
 
 
+@settings(max_examples=400, deadline=None)
+@given(st.one_of(st.text(alphabet="MCCP-1234 /()vVwWphPHoleø3Øacst,.", max_size=24),
+                 st.lists(st.sampled_from(["MCC-1", "LP-2", " ", " / ", "3Ø", "4W", "4 wire", "600V", "120/208 V",
+                                           "1PH", "3 phase", "2 pole", "(", ")", "CKT 4", "panel", "v", "w"]),
+                          max_size=6).map("".join)))
+def test_group_key_skips_the_electrical_words_only_where_none_can_be(text):
+    """``group_key`` looks for voltages, phases and wires only in text holding a letter or glyph that
+    each of them needs; the key and label are what looking everywhere gives."""
+    import re
+
+    from checker.ingest import feeders as module
+
+    quick = module.group_key.__wrapped__(text)
+    saved = module._ELECTRICAL_HINT
+    module._ELECTRICAL_HINT = re.compile("")  # matches every text: always look
+    try:
+        assert quick == module.group_key.__wrapped__(text)
+    finally:
+        module._ELECTRICAL_HINT = saved
+
+
 def test_group_motors_buckets_share_one_group():
     motors = [motor("A", 1, fed_from="MCC-1 / 1A"), motor("B", 2, fed_from="MCC-1 / 2B"),
               motor("C", 3, fed_from="MCC-2 / 1A"), motor("D", 4)]

@@ -52,6 +52,9 @@ _BRACKETS = re.compile(r"\([^)]*\)?|\[[^\]]*\]?")
 _ELECTRICAL_WORDS = re.compile(
     r"\b\d{2,5}(?:\s*/\s*\d{2,5})?\s*(?:v|vac|volts?)\b|\b[13]\s*(?:ph|phase|pole)\b|[13]\s*[øφϕ∅Ø]|[øφϕ∅Ø]|\b[34]\s*w(?:ire)?\b",
     re.IGNORECASE)
+# Every alternative above holds one of these: text without any cannot hold an electrical word.
+_ELECTRICAL_HINT = re.compile(r"[vw]|ph|pole|[øφϕ∅Ø]", re.IGNORECASE)
+_NOT_KEY = re.compile(r"[^A-Z0-9]")
 # Everything after one of these is a bucket, circuit or position inside the source.
 _POSITION = re.compile(
     r"\s*(?:/|,|;|#|\s[-–]\s|\b(?:ckt|cct|circuit|circ|bucket|bkt|cubicle|cub|unit|position|pos|cell|compartment|"
@@ -72,15 +75,16 @@ def group_key(text: str) -> tuple[str, str]:
     """
     flat = " ".join(str(text).split())
     label = _BRACKETS.sub(" ", flat)
-    label = _ELECTRICAL_WORDS.sub(" ", label)
+    if _ELECTRICAL_HINT.search(label):
+        label = _ELECTRICAL_WORDS.sub(" ", label)
     label = _POSITION.sub("", " ".join(label.split()))
     stripped = _TRAILING.sub("", _LEADING.sub("", label.strip())).strip(" :.-")
-    key = re.sub(r"[^A-Z0-9]", "", (stripped or label).upper())
+    key = _NOT_KEY.sub("", (stripped or label).upper())
     # 'Panel A' keys as 'A' but keeps its leading word in the label: a bare 'A' reads as nothing.
     label = stripped if len(stripped) > 2 else label.strip(" :.-")
     if not key:  # only position words: fall back to the whole text
         label = flat
-        key = re.sub(r"[^A-Z0-9]", "", flat.upper())
+        key = _NOT_KEY.sub("", flat.upper())
     return key, label
 
 
