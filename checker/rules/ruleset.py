@@ -471,7 +471,8 @@ def _schema_checked_already(ruleset_sha256: str) -> bool:
     edited file, or a changed schema, is validated as always."""
     try:
         checked = json.loads((repo_root() / "rulesets" / SCHEMA_CHECKED_FILE).read_text(encoding="utf-8"))
-        return ruleset_sha256 in checked["rulesets_sha256"] and \
+        listed = checked["rulesets_sha256"]
+        return isinstance(listed, list) and ruleset_sha256 in listed and \
             checked["schema_sha256"] == _sha256_of(schemas_dir() / "ruleset.schema.json")
     except (OSError, ValueError, KeyError, TypeError):
         return False
