@@ -238,3 +238,12 @@ def test_plain_text_without_the_wrapper_is_parse_text(text):
 @pytest.mark.parametrize("text", ["P-101", "Raw water pump No. 2", "MCC-1 / 3A", "AHU-3 supply fan (VFD)"])
 def test_plain_text_answers_for_ordinary_tags_and_descriptions(text):
     assert values.plain_text(text) == values.parse_text(text) == Parsed(text)
+
+
+@settings(max_examples=500, deadline=None)
+@given(st.one_of(st.text(max_size=12),
+                 st.sampled_from(["TBD", "t.b.a.", "N/A", "n.a", "--", "\u2014", " \u00a0", "by others", "By Div. 23",
+                                  "F.B.O.", "??", "_", "~", "\x1c", "Tbd pump", "NA-1", "fbo"])))
+def test_placeholder_first_letter_test_agrees_with_the_pattern(text):
+    """``_is_placeholder`` runs the placeholder pattern only on text whose first character can begin one."""
+    assert values._is_placeholder(text) == (not text or values._PLACEHOLDER_RE.match(text) is not None)

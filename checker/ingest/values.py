@@ -143,8 +143,15 @@ def _quote(text: str) -> str:
     return f"'{shown}'"
 
 
+# Every placeholder above begins with one of these (in either case) or with a character beyond ASCII.
+_PLACEHOLDER_FIRST = frozenset("tTnNbBfF?-_~" + "".join(chr(c) for c in range(128) if chr(c).isspace()))
+
+
 def _is_placeholder(text: str) -> bool:
-    return not text or _PLACEHOLDER_RE.match(text) is not None
+    if not text:
+        return True
+    first = text[0]
+    return (first in _PLACEHOLDER_FIRST or not first.isascii()) and _PLACEHOLDER_RE.match(text) is not None
 
 
 def _clean_glyphs(text: str) -> str:
@@ -1429,7 +1436,7 @@ def format_device(value: dict[str, Any]) -> str:
 def _is_plain_text(text: str) -> bool:
     """Stripped text that ``_prepare`` would leave as it is (most tags and descriptions)."""
     return text.isascii() and text.isprintable() and "  " not in text and not _is_placeholder(text) \
-        and not _FORMULA_RE.match(text)
+        and not (text[0] == "=" and _FORMULA_RE.match(text))
 
 
 @_cell_parser("text", max_chars=MAX_TEXT_CHARS)
