@@ -640,11 +640,19 @@ def _read_csv(data: bytes, name: str) -> Grid:
         rows.pop()
     if not rows:
         raise InputError(f"{name} is empty (no cell holds a value); export the schedule again and resubmit")
-    width = max((max((i + 1 for i, c in enumerate(r) if c), default=0) for r in rows), default=0)
+    width = max(map(_filled_width, rows), default=0)
     _check_area(name, None, len(rows), width)
-    rows = [(r + [""] * width)[:width] for r in rows]
+    rows = [r if len(r) == width else (r + [""] * width)[:width] for r in rows]
     return Grid(file=name, kind="csv", sheet=None, rows=rows, row_numbers=list(range(1, len(rows) + 1)),
                 hidden_rows=frozenset(), merged=())
+
+
+def _filled_width(row: list[str]) -> int:
+    """Cells up to and including the row's last non-empty one."""
+    width = len(row)
+    while width and not row[width - 1]:
+        width -= 1
+    return width
 
 
 def _csv_records(text: str, delimiter: str, name: str) -> list[list[str]]:
@@ -654,7 +662,7 @@ def _csv_records(text: str, delimiter: str, name: str) -> list[list[str]]:
     cells = 0
     try:
         for record in reader:
-            rows.append([cell.strip() for cell in record])
+            rows.append(list(map(str.strip, record)))
             cells += len(record)
             if len(rows) > MAX_SHEET_ROWS:
                 _check_area(name, None, len(rows), 1)
