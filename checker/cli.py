@@ -19,6 +19,9 @@ from checker import __version__
 
 EXIT_OK, EXIT_FAIL, EXIT_UNUSABLE, EXIT_BUG = 0, 1, 2, 3
 
+# What a review built, held here by run() (the process leaves without freeing it; see run()).
+_HELD_UNTIL_EXIT: list | None = None
+
 
 class _Parser(argparse.ArgumentParser):
     """argparse, but an argument error is one line and exit code 2."""
@@ -102,6 +105,8 @@ def _cmd_review(args) -> int:
     finally:
         for started in parts:
             started.discard()
+    if _HELD_UNTIL_EXIT is not None:  # not freed object by object when this function returns
+        _HELD_UNTIL_EXIT.append((review, report))
     text = summary_text(report, max_lines=0 if args.quiet else 40)
     print(text)
     print(f"Reports: {html_path}  {json_path}" + (f"  {args.csv}" if args.csv else ""))
@@ -153,15 +158,18 @@ def main(argv: list[str] | None = None) -> int:
 def run() -> None:
     """The command's entry point: :func:`main`, then leave at once.
 
-    A large review holds millions of small objects; freeing them one by one at interpreter exit
-    only costs time (a tenth of a second per 10 000 motors) once the reports are written and
-    closed. Output streams are flushed first. Code calling :func:`main` itself is unaffected.
+    A large review holds millions of small objects; freeing them one by one, when the review
+    command returns or at interpreter exit, only costs time (0.02-0.1 s per 10 000 motors) once the
+    reports are written and closed, so the review is held until the process leaves. Output streams
+    are flushed first. Code calling :func:`main` itself is unaffected.
 
     A termination request (SIGTERM, as from a CI time limit or a process manager) is answered
     like Ctrl-C: temporary files and a second process are cleaned up, no report is replaced,
     one line is said and the exit status is 2.
     """
+    global _HELD_UNTIL_EXIT
     signal.signal(signal.SIGTERM, _interrupt)
+    _HELD_UNTIL_EXIT = []
     code = main()
     for stream in (sys.stdout, sys.stderr):
         try:

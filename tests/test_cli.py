@@ -165,3 +165,18 @@ def test_python_dash_m_entry_point(tmp_path):
 def test_soft_starter_device_is_needs_info(demo_report):
     _, report, _ = demo_report
     assert _status(report, "P-404", "branch-ocpd") == ["needs-info"]
+
+
+def test_the_command_holds_its_review_until_the_process_leaves(tmp_path, monkeypatch):
+    """``run()`` leaves with ``os._exit`` so that a large review is never freed object by object; the
+    review command hands it to ``run()`` to hold, and holds nothing when called as a library."""
+    from checker import cli
+
+    argv = ["review", str(DEMO_CSV), "--json", str(tmp_path / "r.json"), "--html", str(tmp_path / "r.html"), "--quiet"]
+    monkeypatch.setattr(cli, "_HELD_UNTIL_EXIT", None)
+    assert main(argv) == 1
+    held = []
+    monkeypatch.setattr(cli, "_HELD_UNTIL_EXIT", held)
+    assert main(argv) == 1
+    (review, report), = held
+    assert len(review.motors) == 35 and report["summary"]["findings"]["fail"] > 0
