@@ -46,6 +46,8 @@ def worst_status(statuses: Iterable[str]) -> str:
 def count_statuses(statuses: Iterable[str]) -> dict[str, int]:
     """Counts keyed ``pass``, ``fail``, ``needs-info`` (always all three, in that order)."""
     counts = {"pass": 0, "fail": 0, "needs-info": 0}
+    if isinstance(statuses, list):  # a facility review's hundreds of thousands of findings: counted in C
+        return {status: statuses.count(status) for status in counts}
     for status in statuses:
         if status in counts:
             counts[status] += 1
@@ -337,11 +339,25 @@ class MotorDicts(Sequence):
         if self._statuses is None:
             motor_statuses, finding_statuses = [], []
             value_of = {status: status.value for status in model.Status}
+
+            def values(findings) -> list[str]:
+                return [value_of.get(f.status) or model.Status(f.status).value for f in findings]
+
+            # Motors whose records agree share one findings tuple (review._CheckMemo): judged once.
+            shared: dict[int, tuple] = {}  # id(findings) -> (findings, their statuses, the worst)
             for review in self._reviews:
-                statuses = [value_of.get(f.status) or model.Status(f.status).value
-                            for f in (*review.motor.input_findings, *review.findings)]
-                motor_statuses.append(worst_status(statuses))
-                finding_statuses.extend(statuses)
+                findings = review.findings
+                known = shared.get(id(findings))
+                if known is None or known[0] is not findings:
+                    statuses = values(findings)
+                    known = shared[id(findings)] = (findings, statuses, worst_status(statuses))
+                if review.motor.input_findings:  # the row's own reading problems come first
+                    statuses = values(review.motor.input_findings) + known[1]
+                    motor_statuses.append(worst_status(statuses))
+                    finding_statuses.extend(statuses)
+                else:
+                    motor_statuses.append(known[2])
+                    finding_statuses.extend(known[1])
             self._statuses = motor_statuses, finding_statuses
         return self._statuses
 
