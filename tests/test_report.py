@@ -555,3 +555,15 @@ def test_feeder_articles_are_the_template_loop_they_replaced(feeders, appendix):
     from checker.report import html_report
 
     assert str(html_report.feeder_articles(feeders, appendix)) == _feeder_loop_html(feeders, appendix)
+
+
+@settings(max_examples=400, deadline=None)
+@given(st.one_of(st.text(max_size=40), st.text(alphabet="&<>\"'a; #3", max_size=40), st.integers(), st.none()))
+def test_escape_text_escapes_as_markupsafe_does(value):
+    """The motor blocks and the feeder section escape text themselves; the page's template escapes
+    with markupsafe. Both must give the same bytes (None is empty text, as in the template)."""
+    from markupsafe import escape
+
+    from checker.report.html_motors import escape_text
+
+    assert escape_text(value) == ("" if value is None else str(escape(value)))
