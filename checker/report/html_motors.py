@@ -238,6 +238,28 @@ def lines_html(lines: list[tuple[int, str, str]], catalogue: Catalogue) -> str:
     return "".join([f"{heads[number - 1]}{cells_text}{working}</li>\n" for number, cells_text, working in lines])
 
 
+_NOT_RUN_HTML: dict[tuple, str] = {}  # (check, detail) pairs -> their line (most motors share a few)
+
+
+def _not_run_html(not_run: Any) -> str:
+    """The motor's checks that could not run, with their figures; the reasons are in the summary's
+    "checks that could not run" table."""
+    try:
+        key = tuple(not_run)
+        known = _NOT_RUN_HTML.get(key)
+    except TypeError:  # a detail that cannot be hashed: made each time
+        key = known = None
+    if known is None:
+        items = "; ".join(escape_text(check) + (f" ({escape_text(detail)})" if detail else "")
+                          for check, detail in not_run)
+        known = f'<p class="nr">Could not run: {items}</p>\n'
+        if key is not None:
+            if len(_NOT_RUN_HTML) >= _MAX_PAIRS:
+                _NOT_RUN_HTML.clear()
+            _NOT_RUN_HTML[key] = known
+    return known
+
+
 def block_html(index: int, status_value: Any, tag: Any, description: Any, location: Any, lines: str,
                not_run: list[tuple[Any, Any]], raw: Any) -> str:
     """A motor's block from its parts; ``lines`` are its findings' ``<li>`` items (:func:`lines_html`)."""
@@ -253,10 +275,7 @@ def block_html(index: int, status_value: Any, tag: Any, description: Any, locati
     else:
         out.append(f'<p class="empty">{NO_FINDINGS}</p>\n')
     if not_run:
-        # The reasons are in the summary's "checks that could not run" table; per motor only its figure.
-        items = "; ".join(escape_text(check) + (f" ({escape_text(detail)})" if detail else "")
-                          for check, detail in not_run)
-        out.append(f'<p class="nr">Could not run: {items}</p>\n')
+        out.append(_not_run_html(not_run))
     out.append(_raw_text(raw, (tag, description)))
     out.append("</details>\n")
     return "".join(out)

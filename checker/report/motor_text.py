@@ -45,6 +45,18 @@ class MotorText:
         self.catalogue = catalogue
         self.entries: dict[int, tuple] = {}  # id(finding) -> see _entry
         self.templates: dict[tuple, _Template | None] = {}
+        self.not_runs: dict[int, tuple] = {}  # id(checks not run) -> (them, their JSON, (check, detail) pairs)
+
+    def _not_run(self, items: Any) -> tuple[str, tuple]:
+        """(JSON, (check, detail) pairs) of a motor's checks that could not run: motors whose
+        records agree share the tuple (review._CheckMemo), so it is written once."""
+        known = self.not_runs.get(id(items))
+        if known is None or known[0] is not items:
+            known = (items, encode([{"check": item.check, "reason": item.reason, "detail": item.detail}
+                                    for item in items]), tuple((item.check, item.detail) for item in items))
+            if items.__class__ is tuple:  # held, never changed: its id stays its own
+                self.not_runs[id(items)] = known
+        return known[1], known[2]
 
     def _entry(self, finding: model.Finding, count: bool = True) -> tuple:
         """(finding, shared part, its JSON up to the cells, catalogue number, inline working);
@@ -139,13 +151,13 @@ class MotorText:
             finding_json = finding_json + texts[1]
             html_lines += texts[2]
         status = worst_status(statuses)
-        not_run = [{"check": item.check, "reason": item.reason, "detail": item.detail} for item in review.not_run]
+        not_run_json, not_run_pairs = self._not_run(review.not_run)
         json_text = "".join([
             encode({"tag": motor.tag, "status": status, "source": source_dict(source)})[:-1],
             ',"record":', _json_of(motor.record), ',"raw":', _json_of(motor.raw),
-            ',"findings":[', ",".join(finding_json), '],"not_run":', encode(not_run), "}"])
+            ',"findings":[', ",".join(finding_json), '],"not_run":', not_run_json, "}"])
         html = block_html(index, status, motor.tag, motor.record.get("description"), source.label(), html_lines,
-                          [(item.check, item.detail) for item in review.not_run], motor.raw)
+                          not_run_pairs, motor.raw)
         return json_text, html
 
 
