@@ -165,7 +165,12 @@ def _raw_text(raw: Any, shown: tuple[Any, ...]) -> str:
     the texts already in the motor's summary line (its tag and description)."""
     if not isinstance(raw, Mapping) or not raw:
         return ""
-    pairs = " · ".join([_pair(header, text) for header, text in raw.items() if text not in shown])
+    known = _PAIRS.get
+    try:  # most pairs are known already: looked up here, without a call each
+        pairs = " · ".join([known((header, text)) or _pair(header, text)
+                            for header, text in raw.items() if text not in shown])
+    except TypeError:  # a header or text that cannot be hashed
+        pairs = " · ".join([_pair(header, text) for header, text in raw.items() if text not in shown])
     return f'<p class="raw">As submitted: {pairs}</p>' if pairs else ""
 
 
