@@ -567,3 +567,15 @@ def test_escape_text_escapes_as_markupsafe_does(value):
     from checker.report.html_motors import escape_text
 
     assert escape_text(value) == ("" if value is None else str(escape(value)))
+
+
+def test_summary_counts_read_in_the_singular_and_the_plural(tmp_path):
+    schedule = tmp_path / "two.csv"
+    schedule.write_text("TAG,HP,VOLTS,FLA,FED FROM,BREAKER\nP-1,10,575,11,MCC-1 / 1A,30 A\n"
+                        "P-2,7-1/2,575,9,MCC-1 / 1B,25A CB\n", encoding="utf-8")
+    from checker.review import review_schedule
+
+    text = summary_text(review_to_dict(review_schedule(schedule), "t"), max_lines=0)
+    assert "3 rows read: 2 motors, 1 not reviewed" in text
+    assert "feeders: 1 motor group, no feeder listed" in text and "motor groups" not in text
+    assert "(2 motors)" in text

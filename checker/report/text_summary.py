@@ -51,6 +51,11 @@ def _finding_lines(report: dict[str, Any]) -> Iterator[str]:
                 yield clip("  ".join(parts))
 
 
+def _count(number: Any, noun: str) -> str:
+    """'1 motor', '2 motors', '0 motors'."""
+    return f"{number} {noun}" if number == 1 else f"{number} {noun}s"
+
+
 def _listed_count(items: list[Any], statuses: tuple[str, ...]) -> int:
     """How many lines the findings of ``items`` (motors or feeders) with these statuses give."""
     if isinstance(items, MotorDicts):
@@ -86,8 +91,8 @@ def head_lines(report: dict[str, Any]) -> list[str]:
     result = summary.get("result", "")
     counts = (
         f"result: {STATUS_WORDS.get(result, clean(result).upper())} | "
-        f"{summary.get('rows_read', 0)} rows read: {summary.get('motors', 0)} motors, "
-        + (f"{summary['feeder_rows']} feeders, " if summary.get("feeder_rows") else "")
+        f"{_count(summary.get('rows_read', 0), 'row')} read: {_count(summary.get('motors', 0), 'motor')}, "
+        + (f"{_count(summary['feeder_rows'], 'feeder')}, " if summary.get("feeder_rows") else "")
         + f"{summary.get('skipped', 0)} not reviewed | motors: {by_status.get('fail', 0)} fail, "
         f"{by_status.get('needs-info', 0)} needs info, {by_status.get('pass', 0)} pass"
     )
@@ -95,9 +100,9 @@ def head_lines(report: dict[str, Any]) -> list[str]:
     feeders = summary.get("feeders") or {}
     if feeders.get("groups") or feeders.get("listed"):
         checked = feeders.get("by_status") or {}
-        line = f"feeders: {feeders.get('groups', 0)} motor groups, "
+        line = f"feeders: {_count(feeders.get('groups', 0), 'motor group')}, "
         if feeders.get("listed"):
-            line += (f"{feeders['listed']} feeders listed | {checked.get('fail', 0)} fail, "
+            line += (f"{_count(feeders['listed'], 'feeder')} listed | {checked.get('fail', 0)} fail, "
                      f"{checked.get('needs-info', 0)} needs info, {checked.get('pass', 0)} pass")
         else:
             line += "no feeder listed (minimum ampacity and maximum device in the report, for information)"
@@ -107,7 +112,7 @@ def head_lines(report: dict[str, Any]) -> list[str]:
         per_check: dict[str, int] = {}
         for entry in not_run:  # one check may be summarised under several reasons
             per_check[entry.get("check", "")] = per_check.get(entry.get("check", ""), 0) + entry.get("motors", 0)
-        listed = ", ".join(f"{clean(check)} ({motors} motors)" for check, motors in per_check.items())
+        listed = ", ".join(f"{clean(check)} ({_count(motors, 'motor')})" for check, motors in per_check.items())
         lines.append(clip(f"checks that could not run: {listed}"))
     return lines
 
