@@ -575,7 +575,11 @@ def test_summary_counts_read_in_the_singular_and_the_plural(tmp_path):
                         "P-2,7-1/2,575,9,MCC-1 / 1B,25A CB\n", encoding="utf-8")
     from checker.review import review_schedule
 
-    text = summary_text(review_to_dict(review_schedule(schedule), "t"), max_lines=0)
+    report = review_to_dict(review_schedule(schedule), "t")
+    text = summary_text(report, max_lines=0)
     assert "3 rows read: 2 motors, 1 not reviewed" in text
     assert "feeders: 1 motor group, no feeder listed" in text and "motor groups" not in text
     assert "(2 motors)" in text
+    page = render_html(report)  # one motor fails, one needs information, none passes
+    assert page.count('<span class="n">1</span><span class="l">motor <span') == 2
+    assert '<span class="n">0</span><span class="l">motors <span' in page
