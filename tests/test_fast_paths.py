@@ -292,3 +292,70 @@ def test_nan_free_numbers_in_json():
         for finding in motor["findings"]:
             for key in ("limit", "provided"):
                 assert finding[key] is None or math.isfinite(finding[key])
+
+
+# --------------------------------------------------------------------------- row templates
+
+_TEMPLATE_EDGES = (
+    "TAG,DESCRIPTION,HP,VOLTS,FLA,FED FROM,CONDUCTORS,OCPD,REMARKS\n"
+    "P-1,Pump,10,575/3/60,11,MCC-1 / 1A,3#12 RW90,25A CB,\n"
+    "P-2,,10,575/3/60,11,MCC-1 / 1B,3#12 RW90,25A CB,spare bearing\n"       # same other cells, empty description
+    "TBD,Pump  two,10,575/3/60,11,MCC-1,3#12 RW90,25A CB,=A1\n"               # placeholder tag, cleaned text, formula
+    "P-4,Pump,ten,575/3/60,11,MCC-1 / 1C,3#12 RW90,25A CB,\n"                 # a cell that cannot be read
+    "P-5,Pump,10,575/3/60,11,,3#12 RW90,25A CB,\n"                            # no source
+    "P-6,Fan \u00e9,10,575/3/60,11,  MCC-2 ,3#12 RW90,25A CB,\n"              # text beyond ASCII, padding
+    "P-7,Pump,10,575/3/60,11,MCC-1 / 1A,3#12 RW90,25A CB,\n"
+)
+
+
+_TWO_COLUMNS_ONE_FIELD = (  # the kW cell states hp: both columns give hp, and the later one is kept
+    "TAG,HP,KW,VOLTS,FLA,FED FROM\n"
+    "P-1,10,7.5 hp,575,11,MCC-1 / 1A\n"
+    "P-2,10,7.5 hp,575,11,MCC-1 / 1B\n"
+    "P-3,10,,575,11,MCC-1 / 1C\n"
+)
+
+
+def _tables(path):
+    from checker.ingest.feeders import locate_feeder_tables, trim_motor_tables
+    from checker.ingest.layout import locate_tables
+    from checker.ingest.readers import read_grids
+
+    for grid in read_grids(Path(path), None):
+        located = locate_tables(grid)
+        yield from trim_motor_tables(located, locate_feeder_tables(grid, located))
+
+
+def _read_both_ways(path, monkeypatch):
+    with monkeypatch.context() as patched:
+        patched.setattr(normalize, "_plan_templates", lambda plans: None)
+        by_column = [normalize.normalize_table(table) for table in _tables(path)]
+    templated = [normalize.normalize_table(table) for table in _tables(path)]
+    return by_column, templated
+
+
+def test_rows_from_templates_equal_rows_read_column_by_column(schedule, more_schedules, monkeypatch, tmp_path):
+    """Rows whose other columns repeat earlier texts are built from a template plus their own
+    free-text cells (``normalize._templated_row``); the motors, their cells and findings, and the
+    rows passed over are those of reading every column of every row."""
+    edges, doubled = tmp_path / "edges.csv", tmp_path / "doubled.csv"
+    edges.write_text(_TEMPLATE_EDGES, encoding="utf-8")
+    doubled.write_text(_TWO_COLUMNS_ONE_FIELD, encoding="utf-8")
+    for path in (schedule, more_schedules, edges, doubled):
+        by_column, templated = _read_both_ways(path, monkeypatch)
+        assert templated == by_column, path
+        for result in templated:
+            for motor in result.motors:  # key order too: it is the order of the report's record and raw
+                expected = next(m for r in by_column for m in r.motors if m.source == motor.source)
+                assert list(motor.record) == list(expected.record) and list(motor.raw) == list(expected.raw)
+                assert dict(motor.sources.columns) == dict(expected.sources.columns)
+
+
+def test_row_templates_are_used(monkeypatch, tmp_path):
+    edges = tmp_path / "edges.csv"
+    edges.write_text(_TEMPLATE_EDGES, encoding="utf-8")
+    made = []
+    real = normalize._row_template
+    monkeypatch.setattr(normalize, "_row_template", lambda plans, cells: made.append(cells[0]) or real(plans, cells))
+    result, = [normalize.normalize_table(table) for table in _tables(edges)]
+    assert len(result.motors) == 7 and 0 < len(made) < 7  # rows sharing the other cells share one template

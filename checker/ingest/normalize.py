@@ -15,6 +15,7 @@ import re
 from collections.abc import Callable
 from dataclasses import dataclass, field
 from functools import lru_cache
+from operator import itemgetter
 from pathlib import Path
 from typing import Any, NamedTuple
 
@@ -369,10 +370,30 @@ class _ColumnPlan:
 
 class _ColumnPlans(list):
     """The table's column plans, the column of a separate device type ("FUSE" / "CB"), if any, and
-    whether the table has separate bond or raceway columns."""
+    whether the table has separate bond or raceway columns; and the row templates (see
+    ``_templated_row``): the free-text columns (tags, descriptions, sources: a new text on most rows)
+    and a getter of the other columns' texts, which repeat from row to row."""
 
     device_type_index: int | None = None
     conductor_extras: bool = True
+    free_text: tuple = ()        # plans of the free-text columns, in column order
+    repeating: Any = None        # cells -> the texts of the other columns (None: no templates)
+    templates: dict | None = None
+    formula_rows: frozenset = frozenset()  # rows holding a formula saved without its value
+
+
+def _plan_templates(plans: _ColumnPlans) -> None:
+    """Set up row templates when they give exactly what the column loop gives: no device-type
+    column (it changes another column's text), each column's own raw key, and at least one column
+    of each kind."""
+    raw_keys = [plan.raw_key for plan in plans]
+    free = tuple(plan for plan in plans if plan.reader is not None and plan.reader.parser is values.parse_text)
+    others = [plan.index for plan in plans if plan not in free]
+    if plans.device_type_index is not None or len(set(raw_keys)) != len(raw_keys) or not free or not others:
+        return
+    plans.free_text = free
+    plans.repeating = itemgetter(*others) if len(others) > 1 else (lambda cells, i=others[0]: (cells[i],))
+    plans.templates = {}
 
 
 def _column_plans(table: LocatedTable) -> _ColumnPlans:
@@ -381,7 +402,92 @@ def _column_plans(table: LocatedTable) -> _ColumnPlans:
                          for col in table.columns)
     plans.device_type_index = next((col.index for col in table.columns if col.field == "ocpd_type"), None)
     plans.conductor_extras = any(col.field in ("bond", "raceway") for col in table.columns)
+    plans.formula_rows = frozenset(row for row, _ in table.grid.formula_cells)
+    _plan_templates(plans)
     return plans
+
+
+_FREE = object()  # a free-text column's place in a template, filled (or left out) row by row
+_MAX_TEMPLATES = 4096  # each holds a row's four dicts; rows with other texts are read column by column
+
+
+def _reading(plan: _ColumnPlan, text: str) -> _CellReading:
+    reading = plan.cache.get(text)
+    if reading is None:
+        if len(plan.cache) >= _MAX_REMEMBERED:
+            plan.cache.clear()
+        reading = plan.cache[text] = _cell_reading(plan, text)
+    return reading
+
+
+def _row_template(plans: _ColumnPlans, cells: list[str]) -> tuple | None:
+    """(record, columns, validity, raw) as the column loop builds them from this row, with each
+    free-text column's keys held in their places by ``_FREE``; None when a template would not give
+    the same (a repeating cell with a finding, or two columns giving one field)."""
+    record: dict[str, Any] = {}
+    columns: dict[str, Any] = {}
+    valid: dict[str, Any] = {}
+    raw: dict[str, Any] = {}
+    free_keys: set[str] = set()
+    for plan in plans:
+        reader = plan.reader
+        if plan in plans.free_text:
+            key = reader.target
+            if key in record:
+                return None
+            record[key] = columns[key] = valid[key] = raw[plan.raw_key] = _FREE
+            free_keys.add(key)
+            continue
+        text = cells[plan.index]
+        if not text:
+            continue
+        raw[plan.raw_key] = text
+        if reader is None:
+            continue
+        reading = _reading(plan, text)
+        if reading.flagged:
+            return None  # its finding names the row's own cell
+        for key, value, ok in reading.values:
+            if key in free_keys or (key in record and not reader.merge):
+                return None  # a free-text field given by another column too, or a field given twice
+            if key not in record:
+                record[key], columns[key], valid[key] = value, plan.letter, ok
+    return record, columns, valid, raw
+
+
+def _templated_row(plans: _ColumnPlans, cells: list[str], row_source: SourceRef,
+                   findings: list[Finding]) -> tuple | None:
+    """(record, columns, validity, raw) of a row from the template of the rows whose other
+    columns hold the same texts, then its own free-text cells; None: read it column by column."""
+    key = plans.repeating(cells)
+    template = plans.templates.get(key)
+    if template is None:
+        if key in plans.templates or len(plans.templates) >= _MAX_TEMPLATES:
+            return None  # no template for these texts, or as many kept as memory allows
+        template = plans.templates[key] = _row_template(plans, cells)
+        if template is None:
+            return None
+    record, columns, valid, raw = (part.copy() for part in template)
+    for plan in plans.free_text:
+        text = cells[plan.index]
+        field = plan.reader.target
+        if text:
+            raw[plan.raw_key] = text
+            reading = plan.cache.get(text)
+            if reading is None and values.is_plain(text):  # a tag or description of its own: not kept
+                record[field], columns[field], valid[field] = text, plan.letter, value_valid(field, text)
+                continue
+            reading = reading or _reading(plan, text)
+            if reading.flagged:
+                findings.append(_cell_finding(plan, row_source, text, reading))
+            if reading.values:
+                (_, value, ok), = reading.values
+                record[field], columns[field], valid[field] = value, plan.letter, ok
+                continue
+        else:
+            del raw[plan.raw_key]
+        del record[field], columns[field], valid[field]
+    return record, columns, valid, raw
 
 
 def _cell_reading(plan: _ColumnPlan, text: str) -> _CellReading:
@@ -424,7 +530,12 @@ def read_motor(table: LocatedTable, row_index: int, section: tuple[str, SourceRe
     findings: list[Finding] = []
     formula_cells = grid.formula_cells
     device_type = cells[plans.device_type_index] if plans.device_type_index is not None else ""
-    for plan in plans:
+    built = None
+    if plans.templates is not None and row_index not in plans.formula_rows:  # those say which cell: column by column
+        built = _templated_row(plans, cells, row_source, findings)
+    if built is not None:
+        record, columns, valid, raw = built
+    for plan in (plans if built is None else ()):
         text = cells[plan.index]
         if not text:
             if formula_cells and (row_index, plan.index) in formula_cells:

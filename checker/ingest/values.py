@@ -1453,9 +1453,12 @@ def plain_text(text: str) -> Parsed | None:
     A schedule's tags and descriptions are mostly distinct, each read once: this is the short way
     for them, without the cache and the wrapper's checks that such text passes anyway.
     """
-    if text and text[0] != " " and text[-1] != " " and len(text) <= MAX_TEXT_CHARS and _is_plain_text(text):
-        return Parsed(text)
-    return None
+    return Parsed(text) if is_plain(text) else None
+
+
+def is_plain(text: str) -> bool:
+    """Whether ``parse_text(text)`` is ``text`` itself, with nothing to note (see ``plain_text``)."""
+    return bool(text) and text[0] != " " and text[-1] != " " and len(text) <= MAX_TEXT_CHARS and _is_plain_text(text)
 
 
 def _prepared_text(text: str) -> Parsed:
