@@ -388,7 +388,7 @@ def _plan_templates(plans: _ColumnPlans) -> None:
     of each kind."""
     raw_keys = [plan.raw_key for plan in plans]
     free = tuple(plan for plan in plans if plan.reader is not None and plan.reader.parser is values.parse_text)
-    others = [plan.index for plan in plans if plan not in free]
+    others = [plan.index for plan in plans if all(plan is not f for f in free)]
     if plans.device_type_index is not None or len(set(raw_keys)) != len(raw_keys) or not free or not others:
         return
     plans.free_text = free
@@ -429,9 +429,10 @@ def _row_template(plans: _ColumnPlans, cells: list[str]) -> tuple | None:
     valid: dict[str, Any] = {}
     raw: dict[str, Any] = {}
     free_keys: set[str] = set()
+    free_columns = {plan.index for plan in plans.free_text}
     for plan in plans:
         reader = plan.reader
-        if plan in plans.free_text:
+        if plan.index in free_columns:
             key = reader.target
             if key in record:
                 return None
@@ -552,11 +553,7 @@ def read_motor(table: LocatedTable, row_index: int, section: tuple[str, SourceRe
             continue
         if device_type and plan.col.field == "ocpd":
             text = f"{text} {device_type}"  # a separate device-type column ("FUSE" / "CB") completes the cell
-        reading = plan.cache.get(text)
-        if reading is None:
-            if len(plan.cache) >= _MAX_REMEMBERED:
-                plan.cache.clear()
-            reading = plan.cache[text] = _cell_reading(plan, text)
+        reading = _reading(plan, text)
         if reading.flagged:
             findings.append(_cell_finding(plan, row_source, text, reading))
         if not reading.values:
@@ -663,8 +660,8 @@ def normalize_table(table: LocatedTable) -> TableResult:
     grid = table.grid
     header_texts = {col.field: col.header.split(" / ")[-1].lower() for col in table.columns}
     section: tuple[str, SourceRef] | None = None
-    formula_rows = {r for r, _ in grid.formula_cells}
     plans = _column_plans(table)
+    formula_rows = plans.formula_rows
     mapped_columns = [(col.field, col.index) for col in table.columns]
     # A field mapped twice is read from its last column (as the dict below keeps it).
     repeats = _header_repeats_by_row(grid.rows[table.data_first:table.data_last + 1], dict(mapped_columns),
